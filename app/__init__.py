@@ -1,0 +1,1 @@
+"""Loopwright application: sketch model, command line and desktop window."""

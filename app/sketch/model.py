@@ -1,0 +1,217 @@
+"""The sketch document: parts and wires on an integer grid, free of Qt.
+
+The document is the single source of truth; the canvas is a view of it.
+Every change goes through a method here and is announced to listeners, so
+the window (and its undo stack) can follow without the model knowing Qt.
+Grid coordinates: x to the right, y downwards, as on screen.
+"""
+from __future__ import annotations
+
+from collections.abc import Callable
+from dataclasses import dataclass, field, replace
+
+from .kinds import KINDS, kind_spec
+
+__all__ = ["PlacedPart", "Wire", "Sketch", "transform", "ROTATIONS"]
+
+ROTATIONS = (0, 90, 180, 270)
+GridPoint = tuple[int, int]
+
+
+def transform(local: GridPoint, rotation: int, mirror: bool) -> GridPoint:
+    """Map a local terminal offset to a grid offset: mirror (flip y), then rotate clockwise on screen."""
+    x, y = local
+    if mirror:
+        y = -y
+    for _ in range((rotation // 90) % 4):
+        x, y = -y, x  # 90° clockwise with y pointing down
+    return x, y
+
+
+@dataclass(frozen=True)
+class PlacedPart:
+    """A part on the grid. ``values`` holds the kind's fields in SI base units."""
+
+    kind: str
+    name: str
+    x: int
+    y: int
+    rotation: int = 0
+    mirror: bool = False
+    values: dict[str, float] = field(default_factory=dict)
+    flags: dict[str, bool] = field(default_factory=dict)
+    label: str = ""
+
+    def terminals(self) -> list[GridPoint]:
+        """Grid points of the terminals, in the kind's terminal order."""
+        spec = kind_spec(self.kind)
+        out = []
+        for t in spec.terminals:
+            dx, dy = transform(t, self.rotation, self.mirror)
+            out.append((self.x + dx, self.y + dy))
+        return out
+
+    def value(self, key: str) -> float:
+        """The value ``key``, falling back to the kind's default."""
+        if key in self.values:
+            return self.values[key]
+        for f in kind_spec(self.kind).fields:
+            if f.key == key:
+                return f.default
+        raise KeyError(key)
+
+    def flag(self, key: str) -> bool:
+        """A boolean property (e.g. a switch's ``closed``); default True."""
+        return self.flags.get(key, True)
+
+
+@dataclass(frozen=True)
+class Wire:
+    """A straight wire between two grid points (horizontal or vertical)."""
+
+    x1: int
+    y1: int
+    x2: int
+    y2: int
+
+    @property
+    def ends(self) -> tuple[GridPoint, GridPoint]:
+        return (self.x1, self.y1), (self.x2, self.y2)
+
+    def points(self) -> list[GridPoint]:
+        """Every grid point the wire passes through, ends included."""
+        dx = (self.x2 > self.x1) - (self.x2 < self.x1)
+        dy = (self.y2 > self.y1) - (self.y2 < self.y1)
+        n = max(abs(self.x2 - self.x1), abs(self.y2 - self.y1))
+        return [(self.x1 + k * dx, self.y1 + k * dy) for k in range(n + 1)]
+
+    def normalized(self) -> "Wire":
+        """The same wire with its ends in a canonical order."""
+        a, b = sorted(self.ends)
+        return Wire(a[0], a[1], b[0], b[1])
+
+
+Listener = Callable[[], None]
+
+
+class Sketch:
+    """An ordered collection of parts (by name) and wires, with change listeners."""
+
+    def __init__(self) -> None:
+        self._parts: dict[str, PlacedPart] = {}
+        self._wires: list[Wire] = []
+        self._listeners: list[Listener] = []
+
+    # -- listening ----------------------------------------------------------
+    def subscribe(self, listener: Listener) -> None:
+        """Call ``listener()`` after every change."""
+        self._listeners.append(listener)
+
+    def _changed(self) -> None:
+        for fn in list(self._listeners):
+            fn()
+
+    # -- reading ------------------------------------------------------------
+    @property
+    def parts(self) -> list[PlacedPart]:
+        return list(self._parts.values())
+
+    @property
+    def wires(self) -> list[Wire]:
+        return list(self._wires)
+
+    def part(self, name: str) -> PlacedPart:
+        return self._parts[name]
+
+    def has_part(self, name: str) -> bool:
+        return name in self._parts
+
+    def next_name(self, kind: str) -> str:
+        """The next free reference designator for ``kind`` (R1, R2, …)."""
+        prefix = kind_spec(kind).prefix or "GND"
+        used = {p.name for p in self._parts.values()}
+        n = 1
+        while f"{prefix}{n}" in used:
+            n += 1
+        return f"{prefix}{n}"
+
+    # -- editing (each call is one change) ------------------------------------
+    def add_part(self, part: PlacedPart, index: int | None = None) -> None:
+        """Add ``part``; ``index`` puts it back at a position (used by undo)."""
+        if part.name in self._parts:
+            raise ValueError(f"a part named {part.name} already exists")
+        if part.kind not in KINDS:
+            raise ValueError(f"unknown part kind {part.kind!r}")
+        items = list(self._parts.items())
+        if index is None or index >= len(items):
+            items.append((part.name, part))
+        else:
+            items.insert(index, (part.name, part))
+        self._parts = dict(items)
+        self._changed()
+
+    def remove_part(self, name: str) -> tuple[PlacedPart, int]:
+        """Remove the part called ``name``; returns it and its former index."""
+        index = list(self._parts).index(name)
+        part = self._parts.pop(name)
+        self._changed()
+        return part, index
+
+    def replace_part(self, name: str, new: PlacedPart) -> PlacedPart:
+        """Replace a part in place (move, rotate, new value, rename); returns the old one."""
+        if new.name != name and new.name in self._parts:
+            raise ValueError(f"a part named {new.name} already exists")
+        old = self._parts[name]
+        self._parts = {(new.name if k == name else k): (new if k == name else v)
+                       for k, v in self._parts.items()}
+        self._changed()
+        return old
+
+    def update_part(self, name: str, **changes) -> PlacedPart:
+        """Replace fields of a part (see ``dataclasses.replace``); returns the old one."""
+        return self.replace_part(name, replace(self._parts[name], **changes))
+
+    def add_wire(self, wire: Wire, index: int | None = None) -> None:
+        """Add a wire (horizontal or vertical, two distinct points)."""
+        if wire.x1 != wire.x2 and wire.y1 != wire.y2:
+            raise ValueError("a wire runs horizontally or vertically")
+        if wire.ends[0] == wire.ends[1]:
+            raise ValueError("a wire needs two different points")
+        if index is None:
+            self._wires.append(wire)
+        else:
+            self._wires.insert(index, wire)
+        self._changed()
+
+    def remove_wire(self, index: int) -> Wire:
+        """Remove the wire at ``index`` and return it."""
+        wire = self._wires.pop(index)
+        self._changed()
+        return wire
+
+    def replace_wire(self, index: int, wire: Wire) -> Wire:
+        """Replace the wire at ``index``; returns the old one."""
+        old = self._wires[index]
+        self._wires[index] = wire
+        self._changed()
+        return old
+
+    def clear(self) -> None:
+        self._parts.clear()
+        self._wires.clear()
+        self._changed()
+
+    # -- comparing ------------------------------------------------------------
+    def snapshot(self) -> tuple:
+        """A hashable value equal for equal documents (order included)."""
+        return (
+            tuple((p.kind, p.name, p.x, p.y, p.rotation, p.mirror,
+                   tuple(sorted(p.values.items())), tuple(sorted(p.flags.items())), p.label)
+                  for p in self._parts.values()),
+            tuple(self._wires),
+        )
+
+    def __eq__(self, other: object) -> bool:
+        return isinstance(other, Sketch) and self.snapshot() == other.snapshot()
+
+    __hash__ = None  # mutable

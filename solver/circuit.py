@@ -1,0 +1,182 @@
+"""The circuit: named points joined by parts, with optional grid positions.
+
+A ``Circuit`` is plain data. It checks each value as it is added, so a bad
+value is refused with a message naming the part; topology is checked when the
+circuit is solved.
+"""
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from .errors import (
+    DuplicateNameError,
+    InvalidValueError,
+    SelfConnectedError,
+    UnknownPartError,
+)
+
+__all__ = ["Circuit", "Part", "RESISTOR", "CELL", "CURRENT_SOURCE", "WIRE", "SWITCH"]
+
+RESISTOR = "resistor"
+CELL = "cell"
+CURRENT_SOURCE = "current_source"
+WIRE = "wire"
+SWITCH = "switch"
+
+
+@dataclass(frozen=True)
+class Part:
+    """One two-terminal part.
+
+    ``a`` and ``b`` are the terminals in the order the part was written (for
+    a cell: plus, minus). ``resistance`` is the series resistance of the
+    branch (internal resistance for a cell, 0 for wires and switches),
+    ``emf`` the EMF of a cell, ``current`` the set current of a source and
+    ``closed`` the state of a switch.
+    """
+
+    name: str
+    kind: str
+    a: str
+    b: str
+    resistance: float = 0.0
+    emf: float = 0.0
+    current: float = 0.0
+    closed: bool = True
+
+    @property
+    def is_conductor(self) -> bool:
+        """True for a zero-ohm connection (wire or closed switch), merged into a node."""
+        return self.kind == WIRE or (self.kind == SWITCH and self.closed)
+
+    @property
+    def is_branch(self) -> bool:
+        """True for a part that is a branch of the mesh equations."""
+        return self.kind in (RESISTOR, CELL, CURRENT_SOURCE)
+
+
+def _check_value(name: str, what: str, value: float, *, zero_ok: bool) -> float:
+    try:
+        v = float(value)
+    except (TypeError, ValueError):
+        raise InvalidValueError(f"{name}: the {what} {value!r} is not a number.", [name]) from None
+    if math.isnan(v):
+        raise InvalidValueError(f"{name}: the {what} is not a number (NaN).", [name])
+    if math.isinf(v):
+        raise InvalidValueError(f"{name}: the {what} is infinite; give a finite value.", [name])
+    if v < 0:
+        raise InvalidValueError(
+            f"{name}: the {what} is negative ({v:g}); use a positive value "
+            "and turn the part round instead.",
+            [name],
+        )
+    if v == 0 and not zero_ok:
+        raise InvalidValueError(
+            f"{name}: the {what} is zero; a zero-ohm connection is a wire.", [name]
+        )
+    return v
+
+
+class Circuit:
+    """Named points joined by two-terminal parts.
+
+    Example
+    -------
+    >>> c = Circuit()
+    >>> c.cell("B1", plus="a", minus="g", emf=9.0, internal_resistance=0.5)
+    >>> c.resistor("R1", "a", "g", 100.0)
+    >>> len(c.parts)
+    2
+    """
+
+    def __init__(self) -> None:
+        self._parts: dict[str, Part] = {}
+        self._positions: dict[str, tuple[float, float]] = {}
+
+    # -- building -----------------------------------------------------------
+    def _add(self, part: Part) -> None:
+        if not isinstance(part.name, str) or not part.name.strip():
+            raise InvalidValueError("Every part needs a name.", [])
+        for t in (part.a, part.b):
+            if not isinstance(t, str) or not t:
+                raise InvalidValueError(f"{part.name}: terminal names must be non-empty text.", [part.name])
+        if part.name in self._parts:
+            raise DuplicateNameError(
+                f"Two parts are named {part.name}; each part needs its own name.", [part.name]
+            )
+        if part.a == part.b:
+            raise SelfConnectedError(
+                f"{part.name} has both terminals on the same point {part.a}.", [part.name]
+            )
+        self._parts[part.name] = part
+
+    def resistor(self, name: str, a: str, b: str, resistance: float) -> None:
+        """Add a resistor of ``resistance`` ohms between ``a`` and ``b``."""
+        r = _check_value(name, "resistance", resistance, zero_ok=False)
+        self._add(Part(name, RESISTOR, a, b, resistance=r))
+
+    def cell(self, name: str, plus: str, minus: str, emf: float,
+             internal_resistance: float = 0.0) -> None:
+        """Add a cell or battery: EMF in volts, internal resistance in ohms (0 = ideal)."""
+        e = _check_value(name, "EMF", emf, zero_ok=True)
+        r = _check_value(name, "internal resistance", internal_resistance, zero_ok=True)
+        self._add(Part(name, CELL, plus, minus, resistance=r, emf=e))
+
+    def current_source(self, name: str, a: str, b: str, current: float) -> None:
+        """Add an ideal current source driving ``current`` amperes through itself from a to b."""
+        i = _check_value(name, "current", current, zero_ok=True)
+        self._add(Part(name, CURRENT_SOURCE, a, b, current=i))
+
+    def wire(self, name: str, a: str, b: str) -> None:
+        """Add a zero-ohm wire; its ends become one node."""
+        self._add(Part(name, WIRE, a, b))
+
+    def switch(self, name: str, a: str, b: str, closed: bool = True) -> None:
+        """Add a switch: closed it is a zero-ohm connection, open it is no branch."""
+        if not isinstance(closed, bool):
+            raise InvalidValueError(f"{name}: a switch is either closed or open.", [name])
+        self._add(Part(name, SWITCH, a, b, closed=closed))
+
+    def place(self, point: str, x: float, y: float) -> None:
+        """Give ``point`` a grid position (x to the right, y downwards, as on screen)."""
+        try:
+            fx, fy = float(x), float(y)
+        except (TypeError, ValueError):
+            raise InvalidValueError(f"The position of point {point} is not a pair of numbers.", []) from None
+        if not (math.isfinite(fx) and math.isfinite(fy)):
+            raise InvalidValueError(f"The position of point {point} is not finite.", [])
+        self._positions[point] = (fx, fy)
+
+    # -- reading ------------------------------------------------------------
+    @property
+    def parts(self) -> list[Part]:
+        """The parts in the order they were added."""
+        return list(self._parts.values())
+
+    def part(self, name: str) -> Part:
+        """The part called ``name``."""
+        try:
+            return self._parts[name]
+        except KeyError:
+            raise UnknownPartError(f"There is no part named {name}.", []) from None
+
+    @property
+    def points(self) -> list[str]:
+        """Every point named by a part, in order of first use."""
+        seen: dict[str, None] = {}
+        for p in self._parts.values():
+            seen.setdefault(p.a)
+            seen.setdefault(p.b)
+        return list(seen)
+
+    @property
+    def positions(self) -> dict[str, tuple[float, float]]:
+        """Grid positions of the points that were placed."""
+        return dict(self._positions)
+
+    def __len__(self) -> int:
+        return len(self._parts)
+
+    def __contains__(self, name: object) -> bool:
+        return name in self._parts
