@@ -1,0 +1,256 @@
+"""Mesh-current (loop-current) analysis: assemble Z·i = e and solve it.
+
+For loops with incidence matrix B (loops × branches), branch resistances R
+and EMFs E, KVL around every loop gives (B R Bᵀ)·j = −B·E, where j are the
+loop currents and the branch currents follow as Bᵀ·j, so KCL holds by
+construction (Maxwell's loop-current method; see e.g. Desoer & Kuh, *Basic
+Circuit Theory*, 1969, ch. 10). A current source adds its voltage as an
+unknown in every loop through it and one constraint row fixing its current,
+so any placement works, supermeshes included:
+
+    [ Z    Bs ] [j]   [ −B·E ]
+    [ Bsᵀ  0  ] [w] = [  J   ]
+
+Small systems are solved dense with numpy, large ones with a sparse LU
+(SuperLU via scipy). Assembly is by sparse matrix products, never a Python
+loop per entry.
+"""
+from __future__ import annotations
+
+import numpy as np
+import scipy.sparse as sp
+from scipy.sparse.linalg import splu
+
+from .checks import check_current_sources, check_ideal_cells
+from .circuit import Circuit
+from .errors import CircuitError, IllConditionedError, UnknownPartError
+from .graph import Topology, accumulate_to_root, bfs_forest, component_roots, contract, subtree_sums
+from .loops import LoopSet, fundamental_loops, orient_clockwise, window_loops
+from .solution import Note, Solution
+
+__all__ = ["solve", "DENSE_LIMIT", "KVL_TOLERANCE"]
+
+DENSE_LIMIT = 400       # unknowns up to which the dense solver is used
+KVL_TOLERANCE = 1e-9    # largest relative KVL residual accepted
+
+
+def solve(circuit: Circuit, ground: str | None = None) -> Solution:
+    """Solve ``circuit`` by mesh-current analysis.
+
+    Parameters
+    ----------
+    circuit : Circuit
+        The parts and points; positions (``Circuit.place``) let the loops be
+        the windows of the drawing.
+    ground : str, optional
+        The point whose potential is 0 V. Without one, each connected island
+        is measured from a point of its own and a note says so.
+
+    Returns
+    -------
+    Solution
+
+    Raises
+    ------
+    CircuitError
+        With a plain message and ``.parts`` when the circuit has no unique
+        solution (shorted ideal cell, unbalanced ideal-cell loop, current
+        sources with no return path or in conflicting series) or when the
+        equations are too ill-conditioned to trust.
+
+    Example
+    -------
+    >>> c = Circuit()
+    >>> c.cell("B1", plus="a", minus="g", emf=12.0)
+    >>> c.resistor("R1", "a", "b", 4.0)
+    >>> c.resistor("R2", "b", "g", 2.0)
+    >>> round(solve(c, ground="g").potential("b"), 9)
+    4.0
+    """
+    if not isinstance(circuit, Circuit):
+        raise TypeError("solve() takes a Circuit")
+    topo = contract(circuit)
+    if ground is not None and ground not in topo.point_index:
+        raise UnknownPartError(f"There is no point named {ground} to use as ground.", [])
+    check_ideal_cells(topo)
+    check_current_sources(topo)
+
+    n, nb = topo.n_nodes, topo.n_branches
+    ground_node = topo.node_of_point[topo.point_index[ground]] if ground is not None else -1
+    preferred = _preferred_references(topo, ground_node)
+    label, roots = component_roots(n, topo.br_u, topo.br_v, preferred)
+    forest = bfs_forest(n, topo.br_u, topo.br_v, roots)
+
+    loops = window_loops(topo)
+    if loops is None:
+        loops = fundamental_loops(topo, forest, forest.edge)
+        if circuit.positions:
+            orient_clockwise(loops, topo)
+
+    j, w = _solve_mesh(topo, loops)
+    cs = np.flatnonzero(topo.br_cs)
+    i_br = loops.B.T @ j if loops.n_loops else np.zeros(nb)
+    i_br[cs] = topo.br_j[cs]
+    v_br = topo.br_r * i_br + topo.br_e
+    v_br[cs] = w
+    _check_kvl(loops, v_br, topo)
+
+    # Node potentials: walk the spanning forest from each island's reference.
+    k = forest.edge
+    step = np.zeros(n)
+    has = k >= 0
+    step[has] = np.where(topo.br_u[k[has]] == np.flatnonzero(has), v_br[k[has]], -v_br[k[has]])
+    potential = accumulate_to_root(forest, step)
+
+    current = np.zeros(len(topo.part_names))
+    voltage = np.zeros(len(topo.part_names))
+    current[topo.branch_parts] = i_br
+    voltage[topo.branch_parts] = v_br
+    current[topo.conductor_parts] = _conductor_currents(topo, i_br)
+    pnode = topo.node_of_point
+    voltage_all = potential[pnode[topo.part_a]] - potential[pnode[topo.part_b]]
+    other = np.ones(len(topo.part_names), bool)
+    other[topo.branch_parts] = False
+    voltage[other] = voltage_all[other]
+    voltage[topo.conductor_parts] = 0.0
+
+    notes = _notes(topo, loops, i_br, label, roots, ground_node)
+    references = [topo.node_names[r] for r in np.unique(roots)
+                  if r != ground_node and _island_has_branch(topo, label, r)]
+    return Solution(topo, current, voltage, potential, loops, j, notes, ground, references)
+
+
+def _preferred_references(topo: Topology, ground_node: int) -> np.ndarray:
+    """Reference candidates in order: ground, then each cell's minus terminal, then any node."""
+    cells = [k for k, pi in enumerate(topo.branch_parts) if topo.part_kind[pi] == "cell"]
+    pref = ([ground_node] if ground_node >= 0 else []) + [int(topo.br_v[k]) for k in cells]
+    return np.array(pref, dtype=np.int64)
+
+
+def _solve_mesh(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.ndarray]:
+    """Loop currents ``j`` and current-source voltages ``w``."""
+    B = loops.B
+    L = loops.n_loops
+    cs = np.flatnonzero(topo.br_cs)
+    if L == 0:
+        return np.zeros(0), np.zeros(len(cs))
+    Z = (B @ sp.diags(topo.br_r) @ B.T).tocsr()
+    e = -(B @ topo.br_e)
+    if len(cs):
+        Bs = B[:, cs]
+        A = sp.bmat([[Z, Bs], [Bs.T, None]], format="csc")
+        rhs = np.concatenate([e, topo.br_j[cs]])
+    else:
+        A = Z.tocsc()
+        rhs = e
+    # Symmetric diagonal scaling keeps resistances from µΩ to TΩ in range.
+    d = np.abs(A.diagonal())
+    s = np.where(d > 0, 1.0 / np.sqrt(np.where(d > 0, d, 1.0)), 1.0)
+    S = sp.diags(s)
+    As = (S @ A @ S).tocsc()
+    bs = s * rhs
+    try:
+        if As.shape[0] <= DENSE_LIMIT:
+            dense = As.toarray()
+            y = np.linalg.solve(dense, bs)
+            y = y + np.linalg.solve(dense, bs - dense @ y)  # one step of iterative refinement
+        else:
+            lu = splu(As, permc_spec="MMD_AT_PLUS_A" if not len(cs) else "COLAMD")
+            y = lu.solve(bs)
+            y = y + lu.solve(bs - As @ y)
+    except (np.linalg.LinAlgError, RuntimeError) as exc:
+        raise CircuitError(
+            "The loop equations of this circuit have no unique solution "
+            f"({exc}). Check for loops made only of sources.", []) from None
+    if not np.all(np.isfinite(y)):
+        raise IllConditionedError(
+            "The loop equations are too ill-conditioned to solve: the values in this "
+            "circuit span too wide a range to give trustworthy results.", [])
+    x = s * y
+    return x[:L], x[L:]
+
+
+def _check_kvl(loops: LoopSet, v_br: np.ndarray, topo: Topology) -> None:
+    """Raise :class:`IllConditionedError` if any loop's KVL residual is above tolerance."""
+    if loops.n_loops == 0:
+        return
+    res = np.abs(loops.B @ v_br)
+    scale = abs(loops.B) @ np.abs(v_br)
+    rel = res / np.maximum(scale, 1e-300)
+    worst = int(np.argmax(rel))
+    if rel[worst] > KVL_TOLERANCE and res[worst] > 1e-300:
+        row = loops.B.getrow(worst)
+        names = [topo.part_names[topo.branch_parts[b]] for b in row.indices]
+        raise IllConditionedError(
+            "The loop equations are too ill-conditioned to trust: around one loop the "
+            f"voltages fail to add up to zero by {rel[worst]:.1e} of their size. The values "
+            "span too wide a range; check for extreme resistances.", names)
+
+
+def _conductor_currents(topo: Topology, i_br: np.ndarray) -> np.ndarray:
+    """Currents in wires and closed switches, from KCL at each point.
+
+    Within each node the conductors form a graph; along a spanning forest of
+    it each conductor carries the current delivered into the points beyond
+    it. Conductors closing a ring of wires carry none (the split round a
+    zero-ohm ring is not determined by the circuit).
+    """
+    cd = topo.conductor_parts
+    if len(cd) == 0:
+        return np.zeros(0)
+    npnt = topo.n_points
+    inj = np.zeros(npnt)
+    pa = topo.part_a[topo.branch_parts]
+    pb = topo.part_b[topo.branch_parts]
+    np.add.at(inj, pa, -i_br)
+    np.add.at(inj, pb, i_br)
+    ca, cb = topo.part_a[cd], topo.part_b[cd]
+    _, first = np.unique(topo.node_of_point, return_index=True)
+    forest = bfs_forest(npnt, ca, cb, first)
+    total = subtree_sums(forest, inj)
+    out = np.zeros(len(cd))
+    x = np.flatnonzero(forest.edge >= 0)
+    c = forest.edge[x]
+    out[c] = np.where(ca[c] == x, total[x], -total[x])
+    return out
+
+
+def _island_has_branch(topo: Topology, label: np.ndarray, root: int) -> bool:
+    nodes = np.concatenate([topo.br_u, topo.br_v])
+    return bool(np.any(label[nodes] == label[root])) if len(nodes) else False
+
+
+def _notes(topo: Topology, loops: LoopSet, i_br: np.ndarray, label: np.ndarray,
+           roots: np.ndarray, ground_node: int) -> list[Note]:
+    notes: list[Note] = []
+    names = topo.part_names
+    bp = topo.branch_parts
+    # islands measured from their own reference point
+    islands = [int(r) for r in np.unique(roots) if int(r) != ground_node and _island_has_branch(topo, label, int(r))]
+    if islands:
+        refs = ", ".join(topo.node_names[r] for r in islands)
+        if ground_node < 0:
+            msg = (f"No ground is chosen, so potentials are measured from point {refs}."
+                   if len(islands) == 1 else
+                   f"No ground is chosen; each separate part of the circuit is measured from its own point: {refs}.")
+        else:
+            msg = (f"Some parts of the circuit are not connected to ground; their potentials are "
+                   f"measured from point {refs} instead.")
+        notes.append(Note("reference", msg, ()))
+    in_loop = np.zeros(topo.n_branches, bool)
+    in_loop[loops.B.indices] = True
+    shorted = topo.br_u == topo.br_v
+    for k in np.flatnonzero(~in_loop & ~topo.br_cs):
+        notes.append(Note("open", f"{names[bp[k]]} is open: it is not in any closed loop, so it carries no current.",
+                          (names[bp[k]],)))
+    for k in np.flatnonzero(shorted & ~topo.br_cs):
+        name = names[bp[k]]
+        if topo.part_kind[bp[k]] == "cell":
+            notes.append(Note("shorted",
+                              f"{name} is shorted: it drives {abs(i_br[k]):.4g} A through its own internal "
+                              "resistance. A real battery shorted like this can overheat, vent or start a fire.",
+                              (name,)))
+        else:
+            notes.append(Note("shorted", f"{name} is shorted: both its ends are on the same node, so it carries no current.",
+                              (name,)))
+    return notes

@@ -1,0 +1,172 @@
+"""The solved circuit: currents, drops, powers, potentials, loops and notes.
+
+Results are held in arrays indexed like the circuit's parts and points;
+the per-name accessors of the solver contract read from them.
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import cached_property
+
+import networkx as nx
+import numpy as np
+
+from .errors import UnknownPartError
+from .graph import Topology, multigraph
+from .loops import LoopSet
+
+__all__ = ["Solution", "Loop", "Note"]
+
+
+@dataclass(frozen=True)
+class Note:
+    """Something the person should know about a solved circuit.
+
+    ``kind`` is a short key (``"open"``, ``"shorted"``, ``"reference"``,
+    ``"precision"``), ``message`` plain words, ``parts`` the parts involved.
+    """
+
+    kind: str
+    message: str
+    parts: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class Loop:
+    """One loop of the mesh equations.
+
+    ``parts`` are the branches around the loop in traversal order as
+    ``(name, sign)``: sign +1 where the loop runs from the part's first
+    terminal to its second. ``orientation`` is ``"clockwise"`` or
+    ``"anticlockwise"`` as seen on screen, or None without positions.
+    ``current`` is the loop (mesh) current in amperes, in the loop's direction.
+    """
+
+    index: int
+    parts: tuple[tuple[str, int], ...]
+    orientation: str | None
+    current: float
+    kind: str  # "window" or "fundamental"
+
+    @property
+    def name(self) -> str:
+        return f"L{self.index + 1}"
+
+
+class Solution:
+    """Every part's current, drop and absorbed power; every point's potential.
+
+    Sign rule (passive convention, one rule for every part): ``current`` runs
+    through the part from its first terminal to its second; ``voltage`` is
+    V(first) − V(second); ``power`` = voltage × current is absorbed power, so a
+    delivering cell shows negative power.
+    """
+
+    def __init__(self, topo: Topology, current: np.ndarray, voltage: np.ndarray,
+                 node_potential: np.ndarray, loopset: LoopSet | None, loop_current: np.ndarray,
+                 notes: list[Note], ground: str | None, references: list[str]) -> None:
+        self._topo = topo
+        self._part_index = {n: i for i, n in enumerate(topo.part_names)}
+        self.currents = current
+        self.voltages = voltage
+        self.powers = voltage * current
+        self.node_potentials = node_potential
+        self._loopset = loopset
+        self.loop_currents = loop_current
+        self.notes: list[Note] = notes
+        self.ground = ground
+        self.references = references
+
+    # -- the contract ---------------------------------------------------------
+    def _pi(self, part: str) -> int:
+        try:
+            return self._part_index[part]
+        except KeyError:
+            raise UnknownPartError(f"There is no part named {part}.", []) from None
+
+    def current(self, part: str) -> float:
+        """Current in amperes through ``part`` from its first terminal to its second."""
+        return float(self.currents[self._pi(part)])
+
+    def voltage(self, part: str) -> float:
+        """V(first terminal) − V(second terminal), volts."""
+        return float(self.voltages[self._pi(part)])
+
+    def power(self, part: str) -> float:
+        """Power absorbed by ``part``, watts (negative when it delivers)."""
+        return float(self.powers[self._pi(part)])
+
+    def potential(self, point: str) -> float:
+        """Potential of ``point`` in volts relative to ground (or its island's reference)."""
+        try:
+            i = self._topo.point_index[point]
+        except KeyError:
+            raise UnknownPartError(f"There is no point named {point}.", []) from None
+        return float(self.node_potentials[self._topo.node_of_point[i]])
+
+    @cached_property
+    def loops(self) -> list[Loop]:
+        """The loops used, each with its parts, orientation and loop current."""
+        ls = self._loopset
+        if ls is None:
+            return []
+        names = self._topo.part_names
+        bp = self._topo.branch_parts
+        bounds = np.searchsorted(ls.loop, np.arange(ls.n_loops + 1))
+        kind = "window" if ls.method == "windows" else "fundamental"
+        out = []
+        for k in range(ls.n_loops):
+            sl = slice(bounds[k], bounds[k + 1])
+            parts = tuple((names[bp[b]], int(s)) for b, s in zip(ls.branch[sl], ls.sign[sl]))
+            cw = ls.clockwise[k]
+            orient = "clockwise" if cw > 0 else "anticlockwise" if cw < 0 else None
+            out.append(Loop(k, parts, orient, float(self.loop_currents[k]), kind))
+        return out
+
+    # -- more -----------------------------------------------------------------
+    @property
+    def loop_method(self) -> str:
+        """``"windows"`` (faces of the drawing) or ``"fundamental"`` (spanning tree), or ``"none"``."""
+        return self._loopset.method if self._loopset is not None else "none"
+
+    @property
+    def parts(self) -> list[str]:
+        return list(self._topo.part_names)
+
+    @property
+    def points(self) -> list[str]:
+        return list(self._topo.point_names)
+
+    @cached_property
+    def nodes(self) -> dict[str, list[str]]:
+        """Each node (named after its first point) with the points merged into it."""
+        out: dict[str, list[str]] = {n: [] for n in self._topo.node_names}
+        for p, i in self._topo.point_index.items():
+            out[self._topo.node_names[self._topo.node_of_point[i]]].append(p)
+        return out
+
+    def node_of(self, point: str) -> str:
+        """The name of the node that ``point`` belongs to."""
+        return self._topo.node_names[self._topo.node_of_point[self._topo.point_index[point]]]
+
+    @property
+    def source_power(self) -> float:
+        """Power delivered by all cells and current sources, watts."""
+        kinds = self._topo.part_kind
+        src = [i for i, k in enumerate(kinds) if k in ("cell", "current_source")]
+        return float(-self.powers[src].sum()) if src else 0.0
+
+    @property
+    def power_balance(self) -> float:
+        """Sum of absorbed power over all parts (zero by Tellegen's theorem), watts."""
+        return float(self.powers.sum())
+
+    @cached_property
+    def graph(self) -> nx.MultiGraph:
+        """The circuit's topology as a networkx MultiGraph (built on first use)."""
+        return multigraph(self._topo)
+
+    @property
+    def warnings(self) -> list[Note]:
+        """Alias of :attr:`notes`."""
+        return self.notes
