@@ -1,0 +1,221 @@
+"""From grid geometry to a solver ``Circuit``: which grid points touch.
+
+Rules, as a person reads a drawing: ends that touch connect; a wire end or
+part terminal lying on the middle of another wire makes a T-junction there;
+wires that merely cross do not connect; collinear wires that overlap are one
+conductor.  Each wire is cut at every connection point on it, so every
+circuit wire part is a straight segment between two placed points and the
+circuit keeps the geometry of the drawing.
+"""
+from __future__ import annotations
+
+import bisect
+from collections import defaultdict
+from dataclasses import dataclass, field
+
+from solver import Circuit, CircuitError
+
+from .kinds import KINDS
+from .model import PlacedPart, Sketch, Wire
+
+__all__ = ["Netlist", "to_circuit", "WIRE_PREFIX", "GROUND_TIE_PREFIX", "point_name"]
+
+GridPoint = tuple[int, int]
+
+# Names of the circuit parts made here start with "~", which part names may not.
+WIRE_PREFIX = "~w"
+GROUND_TIE_PREFIX = "~gnd"
+
+
+@dataclass
+class Netlist:
+    """A sketch as a circuit, with what the canvas needs to draw connections."""
+
+    circuit: Circuit
+    ground: str | None
+    point_at: dict[GridPoint, str] = field(default_factory=dict)
+    wire_parts: dict[int, list[str]] = field(default_factory=dict)
+    junctions: list[GridPoint] = field(default_factory=list)
+    open_ends: list[GridPoint] = field(default_factory=list)
+
+
+@dataclass
+class _Piece:
+    """A stretch of conductor between two consecutive connection points (a < b)."""
+
+    a: GridPoint
+    b: GridPoint
+    wires: list[int]
+    name: str = ""
+
+
+def point_name(p: GridPoint) -> str:
+    """The circuit point name of grid point ``p``: ``"x,y"``."""
+    return f"{p[0]},{p[1]}"
+
+
+def _check(sketch: Sketch) -> None:
+    for part in sketch.parts:
+        if part.kind not in KINDS:
+            raise CircuitError(f"{part.name} is of an unknown kind ({part.kind}).", [part.name])
+        if part.name.startswith("~"):
+            raise CircuitError(
+                f"The name {part.name} starts with '~', which is kept for wires; rename the part.",
+                [part.name],
+            )
+    for i, w in enumerate(sketch.wires):
+        if (w.x1 != w.x2 and w.y1 != w.y2) or w.ends[0] == w.ends[1]:
+            raise CircuitError(
+                f"The wire from ({w.x1}, {w.y1}) to ({w.x2}, {w.y2}) is not a horizontal or "
+                "vertical run between two different points.",
+                [],
+            )
+
+
+def _runs(wires: list[Wire]):
+    """Collinear wires merged where they overlap or touch.
+
+    Yields ``(horizontal, line, lo, hi, members)`` with ``members`` the
+    ``(lo, hi, index)`` spans of the sketch wires in the run.
+    """
+    lines: dict[tuple[bool, int], list[tuple[int, int, int]]] = defaultdict(list)
+    for i, w in enumerate(wires):
+        if w.y1 == w.y2:
+            lines[(True, w.y1)].append((min(w.x1, w.x2), max(w.x1, w.x2), i))
+        else:
+            lines[(False, w.x1)].append((min(w.y1, w.y2), max(w.y1, w.y2), i))
+    for (horizontal, line), spans in sorted(lines.items()):
+        spans.sort()
+        members = [spans[0]]
+        hi = spans[0][1]
+        for span in spans[1:]:
+            if span[0] > hi:
+                yield horizontal, line, members[0][0], hi, members
+                members, hi = [], span[1]
+            members.append(span)
+            hi = max(hi, span[1])
+        yield horizontal, line, members[0][0], hi, members
+
+
+def _pieces(wires: list[Wire], stops: set[GridPoint]) -> list[_Piece]:
+    """Cut the merged runs at every stop (terminal or wire end) lying on them."""
+    rows: dict[int, list[int]] = defaultdict(list)  # y -> xs of stops
+    cols: dict[int, list[int]] = defaultdict(list)  # x -> ys of stops
+    for x, y in sorted(stops):
+        rows[y].append(x)
+        cols[x].append(y)
+    pieces: list[_Piece] = []
+    for horizontal, line, lo, hi, members in _runs(wires):
+        along = rows[line] if horizontal else cols[line]
+        cuts = along[bisect.bisect_left(along, lo): bisect.bisect_right(along, hi)]
+        for t0, t1 in zip(cuts, cuts[1:]):
+            owners = [i for wlo, whi, i in members if wlo <= t0 and t1 <= whi]
+            a, b = ((t0, line), (t1, line)) if horizontal else ((line, t0), (line, t1))
+            pieces.append(_Piece(a, b, sorted(owners)))
+    counts: dict[int, int] = defaultdict(int)
+    for piece in pieces:
+        owner = piece.wires[0]
+        counts[owner] += 1
+        piece.name = f"{WIRE_PREFIX}{owner}.{counts[owner]}"
+    return pieces
+
+
+def _add_part(c: Circuit, part: PlacedPart, ends: list[str]) -> None:
+    if part.kind == "resistor":
+        c.resistor(part.name, ends[0], ends[1], part.value("resistance"))
+    elif part.kind == "cell":
+        c.cell(part.name, plus=ends[0], minus=ends[1], emf=part.value("emf"),
+               internal_resistance=part.value("internal_resistance"))
+    elif part.kind == "current_source":
+        c.current_source(part.name, ends[0], ends[1], part.value("current"))
+    elif part.kind == "switch":
+        c.switch(part.name, ends[0], ends[1], closed=part.flag("closed"))
+    else:
+        raise CircuitError(f"{part.name}: Loopwright cannot yet solve a {part.kind}.", [part.name])
+
+
+class _Groups:
+    """Union-find over grid points (path halving)."""
+
+    def __init__(self) -> None:
+        self._up: dict[GridPoint, GridPoint] = {}
+
+    def find(self, p: GridPoint) -> GridPoint:
+        up = self._up
+        up.setdefault(p, p)
+        while up[p] != p:
+            up[p] = up[up[p]]
+            p = up[p]
+        return p
+
+    def join(self, p: GridPoint, q: GridPoint) -> None:
+        self._up[self.find(p)] = self.find(q)
+
+
+def to_circuit(sketch: Sketch) -> Netlist:
+    """The circuit drawn in ``sketch``, every point placed at its grid position.
+
+    Wire parts are named ``~w<wire index>.<piece>`` and run from the lower to
+    the higher grid coordinate; several ground symbols are tied together by
+    wire parts ``~gnd1``, ``~gnd2``….  Raises ``CircuitError`` (with
+    ``.parts``) for a sketch that cannot become a circuit.
+    """
+    _check(sketch)
+    parts = sketch.parts
+    wires = sketch.wires
+    terminals = {p.name: p.terminals() for p in parts}
+    stops = {t for ts in terminals.values() for t in ts}
+    stops.update(end for w in wires for end in w.ends)
+    pieces = _pieces(wires, stops)
+
+    c = Circuit()
+    point_at = {p: point_name(p) for p in sorted(stops)}
+    for p, name in point_at.items():
+        c.place(name, p[0], p[1])
+
+    degree: dict[GridPoint, int] = defaultdict(int)
+    for part in parts:
+        for t in terminals[part.name]:
+            degree[t] += 1
+        if part.kind != "ground":
+            _add_part(c, part, [point_at[t] for t in terminals[part.name]])
+
+    groups = _Groups()
+    wire_parts: dict[int, list[str]] = {i: [] for i in range(len(wires))}
+    for piece in pieces:
+        c.wire(piece.name, point_at[piece.a], point_at[piece.b])
+        degree[piece.a] += 1
+        degree[piece.b] += 1
+        groups.join(piece.a, piece.b)
+        for i in piece.wires:
+            wire_parts[i].append(piece.name)
+    for i, w in enumerate(wires):
+        if w.ends[0] > w.ends[1]:
+            wire_parts[i].reverse()  # list them from the wire's first end
+
+    ground = _tie_grounds(c, parts, terminals, groups, point_at)
+    return Netlist(
+        circuit=c,
+        ground=ground,
+        point_at=point_at,
+        wire_parts=wire_parts,
+        junctions=sorted(p for p, n in degree.items() if n >= 3),
+        open_ends=sorted(p for p, n in degree.items() if n == 1),
+    )
+
+
+def _tie_grounds(c: Circuit, parts: list[PlacedPart], terminals: dict[str, list[GridPoint]],
+                 groups: _Groups, point_at: dict[GridPoint, str]) -> str | None:
+    """Join every ground symbol's node to the first one's; the ground point name or None."""
+    grounds = list(dict.fromkeys(terminals[p.name][0] for p in parts if p.kind == "ground"))
+    if not grounds:
+        return None
+    first = grounds[0]
+    n = 0
+    for g in grounds[1:]:
+        if groups.find(g) != groups.find(first):
+            n += 1
+            c.wire(f"{GROUND_TIE_PREFIX}{n}", point_at[first], point_at[g])
+            groups.join(g, first)
+    name = point_at[first]
+    return name if name in c.points else None
