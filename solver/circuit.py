@@ -56,7 +56,7 @@ class Part:
         return self.kind in (RESISTOR, CELL, CURRENT_SOURCE)
 
 
-def _check_value(name: str, what: str, value: float, *, zero_ok: bool) -> float:
+def _check_value(name: str, what: str, value: float, *, zero_ok: bool, turn_hint: bool = False) -> float:
     try:
         v = float(value)
     except (TypeError, ValueError):
@@ -66,11 +66,8 @@ def _check_value(name: str, what: str, value: float, *, zero_ok: bool) -> float:
     if math.isinf(v):
         raise InvalidValueError(f"{name}: the {what} is infinite; give a finite value.", [name])
     if v < 0:
-        raise InvalidValueError(
-            f"{name}: the {what} is negative ({v:g}); use a positive value "
-            "and turn the part round instead.",
-            [name],
-        )
+        hint = " Give a positive value and turn the part round instead." if turn_hint else ""
+        raise InvalidValueError(f"{name}: the {what} cannot be negative ({v:g}).{hint}", [name])
     if v == 0 and not zero_ok:
         raise InvalidValueError(
             f"{name}: the {what} is zero; a zero-ohm connection is a wire.", [name]
@@ -119,13 +116,13 @@ class Circuit:
     def cell(self, name: str, plus: str, minus: str, emf: float,
              internal_resistance: float = 0.0) -> None:
         """Add a cell or battery: EMF in volts, internal resistance in ohms (0 = ideal)."""
-        e = _check_value(name, "EMF", emf, zero_ok=True)
+        e = _check_value(name, "EMF", emf, zero_ok=True, turn_hint=True)
         r = _check_value(name, "internal resistance", internal_resistance, zero_ok=True)
         self._add(Part(name, CELL, plus, minus, resistance=r, emf=e))
 
     def current_source(self, name: str, a: str, b: str, current: float) -> None:
         """Add an ideal current source driving ``current`` amperes through itself from a to b."""
-        i = _check_value(name, "current", current, zero_ok=True)
+        i = _check_value(name, "current", current, zero_ok=True, turn_hint=True)
         self._add(Part(name, CURRENT_SOURCE, a, b, current=i))
 
     def wire(self, name: str, a: str, b: str) -> None:

@@ -14,7 +14,7 @@ from scipy.sparse import coo_matrix, csgraph
 
 from .circuit import CELL, CURRENT_SOURCE, RESISTOR, Circuit
 
-__all__ = ["Topology", "contract", "Forest", "bfs_forest", "component_roots",
+__all__ = ["Topology", "contract", "Forest", "bfs_forest", "least_resistance_forest", "component_roots",
            "accumulate_to_root", "subtree_sums", "multigraph"]
 
 
@@ -66,13 +66,18 @@ def contract(circuit: Circuit) -> Topology:
     conductor graph, so it runs in C.
     """
     parts = circuit.parts
-    point_names = circuit.points
-    point_index = {p: i for i, p in enumerate(point_names)}
+    point_index: dict[str, int] = {}
+    a_list, b_list = [], []
+    for p in parts:  # one pass; points are numbered in order of first use
+        a_list.append(point_index.setdefault(p.a, len(point_index)))
+        b_list.append(point_index.setdefault(p.b, len(point_index)))
+    point_names = list(point_index)
     n = len(point_names)
-    pa = np.fromiter((point_index[p.a] for p in parts), dtype=np.int64, count=len(parts))
-    pb = np.fromiter((point_index[p.b] for p in parts), dtype=np.int64, count=len(parts))
-    conductor = np.fromiter((p.is_conductor for p in parts), dtype=bool, count=len(parts))
-    branch = np.fromiter((p.is_branch for p in parts), dtype=bool, count=len(parts))
+    pa = np.array(a_list, dtype=np.int64)
+    pb = np.array(b_list, dtype=np.int64)
+    kinds = [p.kind for p in parts]
+    conductor = np.array([p.is_conductor for p in parts], dtype=bool)
+    branch = np.array([p.is_branch for p in parts], dtype=bool)
 
     cd = np.flatnonzero(conductor)
     adj = coo_matrix((np.ones(len(cd)), (pa[cd], pb[cd])), shape=(n, n))
@@ -86,7 +91,6 @@ def contract(circuit: Circuit) -> Topology:
     node_names = [point_names[i] for i in np.sort(first)]
 
     bi = np.flatnonzero(branch)
-    kinds = [p.kind for p in parts]
     br_r = np.array([parts[i].resistance for i in bi], dtype=float)
     br_e = np.array([parts[i].emf if kinds[i] == CELL else 0.0 for i in bi], dtype=float)
     br_j = np.array([parts[i].current if kinds[i] == CURRENT_SOURCE else 0.0 for i in bi], dtype=float)
@@ -215,6 +219,36 @@ def subtree_sums(forest: Forest, value: np.ndarray) -> np.ndarray:
             break
         np.add.at(total, forest.parent[level], total[level])
     return total
+
+
+def least_resistance_forest(topo: Topology, roots: np.ndarray) -> Forest:
+    """A spanning forest of the branches that prefers low resistance (Kruskal via csgraph).
+
+    Used when the loop equations of a shallow tree are ill-conditioned: with
+    the high-resistance branches as chords, each appears in one loop only and
+    the loop matrix stays diagonally dominant. Current sources are taken last.
+    ``Forest.edge`` indexes the branches.
+    """
+    n, nb = topo.n_nodes, topo.n_branches
+    u, v = topo.br_u, topo.br_v
+    weight = np.empty(nb)
+    weight[np.argsort(topo.br_r, kind="stable")] = np.arange(1, nb + 1)
+    weight[topo.br_cs] = nb + 1.0
+    ok = u != v
+    lo, hi = np.minimum(u, v)[ok], np.maximum(u, v)[ok]
+    idx = np.flatnonzero(ok)
+    order = np.lexsort((weight[idx], hi, lo))   # lightest of each parallel bundle first
+    lo, hi, idx = lo[order], hi[order], idx[order]
+    first = np.r_[True, (lo[1:] != lo[:-1]) | (hi[1:] != hi[:-1])]
+    lo, hi, idx = lo[first], hi[first], idx[first]
+    mst = csgraph.minimum_spanning_tree(coo_matrix((weight[idx], (lo, hi)), shape=(n, n))).tocoo()
+    key = lo * n + hi
+    tkey = np.minimum(mst.row, mst.col).astype(np.int64) * n + np.maximum(mst.row, mst.col)
+    sk = np.argsort(key)
+    tree = idx[sk[np.searchsorted(key[sk], tkey)]]
+    f = bfs_forest(n, u[tree], v[tree], roots)
+    f.edge = np.where(f.edge >= 0, tree[np.maximum(f.edge, 0)], -1)
+    return f
 
 
 def multigraph(topo: Topology) -> nx.MultiGraph:

@@ -81,6 +81,40 @@ def _orient(ax, ay, bx, by, cx, cy):
     return np.sign((bx - ax) * (cy - ay) - (by - ay) * (cx - ax))
 
 
+def _grid_segments_cross(p: np.ndarray, q: np.ndarray) -> bool | None:
+    """Crossing test for horizontal/vertical segments with integer ends, or None if not such.
+
+    Two such segments can only meet at integer points, so it is enough to
+    list the integer points inside each segment: a drawing has a crossing,
+    overlap or T-touch exactly when some segment's inner point is also a
+    point of another segment. (End points are unique per point, checked by
+    the caller.)
+    """
+    if not (np.all(p == np.round(p)) and np.all(q == np.round(q))):
+        return None
+    d = q - p
+    if np.any((d[:, 0] != 0) & (d[:, 1] != 0)):
+        return None
+    length = np.abs(d).sum(axis=1).astype(np.int64)
+    inner = np.maximum(length - 1, 0)
+    total = int(inner.sum())
+    if total > 50 * len(p) + 1_000_000:
+        return None
+    pi = p.astype(np.int64)
+    lo = pi.min(axis=0)
+    span = int((np.maximum(p, q).astype(np.int64) - lo).max()) + 1
+    key_of = lambda xy: (xy[:, 0] - lo[0]) * span + (xy[:, 1] - lo[1])  # noqa: E731
+    seg = np.repeat(np.arange(len(p)), inner)
+    k = 1 + np.arange(total) - np.repeat(np.cumsum(inner) - inner, inner)
+    step = np.sign(d).astype(np.int64)
+    pts = pi[seg] + step[seg] * k[:, None]
+    inner_keys = key_of(pts)
+    if len(np.unique(inner_keys)) != total:
+        return True
+    ends = np.unique(np.concatenate([key_of(pi), key_of(q.astype(np.int64))]))
+    return bool(np.isin(inner_keys, ends).any())
+
+
 def segments_cross(p: np.ndarray, q: np.ndarray, ia: np.ndarray, ib: np.ndarray) -> bool:
     """True if any two segments meet anywhere but at a shared end point.
 
@@ -93,6 +127,9 @@ def segments_cross(p: np.ndarray, q: np.ndarray, ia: np.ndarray, ib: np.ndarray)
     n = len(p)
     if n < 2:
         return False
+    fast = _grid_segments_cross(p, q)
+    if fast is not None:
+        return fast
     lo = np.minimum(p, q)
     hi = np.maximum(p, q)
     length = np.hypot(*(q - p).T)

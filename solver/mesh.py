@@ -23,8 +23,9 @@ from scipy.sparse.linalg import splu
 
 from .checks import check_current_sources, check_ideal_cells
 from .circuit import Circuit
-from .errors import CircuitError, IllConditionedError, UnknownPartError
-from .graph import Topology, accumulate_to_root, bfs_forest, component_roots, contract, subtree_sums
+from .errors import IllConditionedError, UnknownPartError
+from .graph import (Topology, accumulate_to_root, bfs_forest, component_roots, contract,
+                    least_resistance_forest, subtree_sums)
 from .loops import LoopSet, fundamental_loops, orient_clockwise, window_loops
 from .solution import Note, Solution
 
@@ -81,19 +82,25 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
     label, roots = component_roots(n, topo.br_u, topo.br_v, preferred)
     forest = bfs_forest(n, topo.br_u, topo.br_v, roots)
 
-    loops = window_loops(topo)
-    if loops is None:
-        loops = fundamental_loops(topo, forest, forest.edge)
-        if circuit.positions:
+    # Windows when the drawing allows, else a shallow tree's loops; if either is
+    # too ill-conditioned, the loops of a least-resistance tree.
+    failure: IllConditionedError | None = None
+    for make in (lambda: window_loops(topo),
+                 lambda: fundamental_loops(topo, forest, forest.edge),
+                 lambda: _least_resistance_loops(topo, roots)):
+        loops = make()
+        if loops is None:
+            continue
+        if loops.method == "fundamental" and circuit.positions:
             orient_clockwise(loops, topo)
-
-    j, w = _solve_mesh(topo, loops)
-    cs = np.flatnonzero(topo.br_cs)
-    i_br = loops.B.T @ j if loops.n_loops else np.zeros(nb)
-    i_br[cs] = topo.br_j[cs]
-    v_br = topo.br_r * i_br + topo.br_e
-    v_br[cs] = w
-    _check_kvl(loops, v_br, topo)
+        try:
+            j, i_br, v_br = _branch_solution(topo, loops)
+            break
+        except IllConditionedError as exc:
+            failure = exc
+    else:
+        assert failure is not None
+        raise failure
 
     # Node potentials: walk the spanning forest from each island's reference.
     k = forest.edge
@@ -127,6 +134,24 @@ def _preferred_references(topo: Topology, ground_node: int) -> np.ndarray:
     return np.array(pref, dtype=np.int64)
 
 
+def _least_resistance_loops(topo: Topology, roots: np.ndarray) -> LoopSet:
+    tree = least_resistance_forest(topo, roots)
+    return fundamental_loops(topo, tree, tree.edge)
+
+
+def _branch_solution(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Loop currents, branch currents and branch voltages, checked against KVL."""
+    j, w = _solve_mesh(topo, loops)
+    cs = np.flatnonzero(topo.br_cs)
+    i_br = loops.B.T @ j if loops.n_loops else np.zeros(topo.n_branches)
+    i_br[cs] = topo.br_j[cs]
+    v_br = topo.br_r * i_br + topo.br_e
+    v_br[cs] = w
+    size = np.abs(topo.br_r * i_br) + np.abs(topo.br_e) + np.abs(np.where(topo.br_cs, v_br, 0.0))
+    _check_kvl(loops, v_br, size, topo)
+    return j, i_br, v_br
+
+
 def _solve_mesh(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.ndarray]:
     """Loop currents ``j`` and current-source voltages ``w``."""
     B = loops.B
@@ -158,10 +183,11 @@ def _solve_mesh(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.ndarray]
             lu = splu(As, permc_spec="MMD_AT_PLUS_A" if not len(cs) else "COLAMD")
             y = lu.solve(bs)
             y = y + lu.solve(bs - As @ y)
-    except (np.linalg.LinAlgError, RuntimeError) as exc:
-        raise CircuitError(
-            "The loop equations of this circuit have no unique solution "
-            f"({exc}). Check for loops made only of sources.", []) from None
+    except (np.linalg.LinAlgError, RuntimeError):
+        # The topology checks rule out true singularity, so this is rounding.
+        raise IllConditionedError(
+            "The loop equations are too ill-conditioned to solve: the values in this "
+            "circuit span too wide a range to give trustworthy results.", []) from None
     if not np.all(np.isfinite(y)):
         raise IllConditionedError(
             "The loop equations are too ill-conditioned to solve: the values in this "
@@ -170,12 +196,17 @@ def _solve_mesh(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.ndarray]
     return x[:L], x[L:]
 
 
-def _check_kvl(loops: LoopSet, v_br: np.ndarray, topo: Topology) -> None:
-    """Raise :class:`IllConditionedError` if any loop's KVL residual is above tolerance."""
+def _check_kvl(loops: LoopSet, v_br: np.ndarray, size: np.ndarray, topo: Topology) -> None:
+    """Raise :class:`IllConditionedError` if any loop's KVL residual is above tolerance.
+
+    The residual is measured against ``size``, the magnitude of each branch's
+    terms (|R·i| + |E|, or the source voltage), so a loop whose terms cancel
+    exactly is not mistaken for a poor one.
+    """
     if loops.n_loops == 0:
         return
     res = np.abs(loops.B @ v_br)
-    scale = abs(loops.B) @ np.abs(v_br)
+    scale = abs(loops.B) @ size
     rel = res / np.maximum(scale, 1e-300)
     worst = int(np.argmax(rel))
     if rel[worst] > KVL_TOLERANCE and res[worst] > 1e-300:

@@ -66,7 +66,6 @@ class Solution:
                  node_potential: np.ndarray, loopset: LoopSet | None, loop_current: np.ndarray,
                  notes: list[Note], ground: str | None, references: list[str]) -> None:
         self._topo = topo
-        self._part_index = {n: i for i, n in enumerate(topo.part_names)}
         self.currents = current
         self.voltages = voltage
         self.powers = voltage * current
@@ -78,6 +77,10 @@ class Solution:
         self.references = references
 
     # -- the contract ---------------------------------------------------------
+    @cached_property
+    def _part_index(self) -> dict[str, int]:
+        return {n: i for i, n in enumerate(self._topo.part_names)}
+
     def _pi(self, part: str) -> int:
         try:
             return self._part_index[part]
