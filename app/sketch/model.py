@@ -142,12 +142,12 @@ class Sketch:
             raise ValueError(f"a part named {part.name} already exists")
         if part.kind not in KINDS:
             raise ValueError(f"unknown part kind {part.kind!r}")
-        items = list(self._parts.items())
-        if index is None or index >= len(items):
-            items.append((part.name, part))
+        if index is None or index >= len(self._parts):
+            self._parts[part.name] = part  # appending keeps loading a large sketch linear
         else:
+            items = list(self._parts.items())
             items.insert(index, (part.name, part))
-        self._parts = dict(items)
+            self._parts = dict(items)
         self._changed()
 
     def remove_part(self, name: str) -> tuple[PlacedPart, int]:
