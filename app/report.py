@@ -1,0 +1,81 @@
+"""A solved sketch as plain data and as a readable table, for the command line.
+
+Internal circuit parts (wire pieces, ground ties: names starting with ``~``)
+are left out; the person sees the parts they drew.
+"""
+from __future__ import annotations
+
+from solver import Solution
+
+from .units import format_value
+
+__all__ = ["solution_dict", "solution_table", "CAUTION"]
+
+CAUTION = ("Results come from an idealised linear DC model: they are no substitute for "
+           "measurement. Mains and high-energy work follows local codes and licensed practice.")
+
+
+def _shown(name: str) -> bool:
+    return not name.startswith("~")
+
+
+def solution_dict(sol: Solution) -> dict:
+    """Parts, nodes, loops and warnings as JSON-ready data (SI base units)."""
+    parts = {
+        name: {"current": sol.current(name), "voltage": sol.voltage(name), "power": sol.power(name)}
+        for name in sol.parts if _shown(name)
+    }
+    nodes = {name: {"potential": sol.potential(name), "points": points}
+             for name, points in sol.nodes.items()}
+    loops = [{
+        "name": lp.name,
+        "parts": [[n, s] for n, s in lp.parts],
+        "orientation": lp.orientation,
+        "current": lp.current,
+    } for lp in sol.loops]
+    warnings = [{"kind": n.kind, "message": n.message, "parts": [p for p in n.parts if _shown(p)]}
+                for n in sol.notes]
+    return {
+        "ground": sol.ground,
+        "loop_method": sol.loop_method,
+        "parts": parts,
+        "nodes": nodes,
+        "loops": loops,
+        "warnings": warnings,
+        "source_power": sol.source_power,
+        "power_balance": sol.power_balance,
+    }
+
+
+def _table(header: list[str], rows: list[list[str]]) -> list[str]:
+    widths = [max(len(h), *(len(r[i]) for r in rows)) if rows else len(h) for i, h in enumerate(header)]
+    line = lambda cells: "  ".join(c.rjust(w) if i else c.ljust(w) for i, (c, w) in enumerate(zip(cells, widths)))  # noqa: E731
+    return [line(header), line(["-" * w for w in widths])] + [line(r) for r in rows]
+
+
+def solution_table(sol: Solution, title: str = "") -> str:
+    """A plain-text report: parts, node potentials, loop currents, warnings."""
+    out: list[str] = []
+    if title:
+        out += [title, ""]
+    rows = [[n, format_value(sol.current(n), "A"), format_value(sol.voltage(n), "V"),
+             format_value(sol.power(n), "W")] for n in sol.parts if _shown(n)]
+    out += _table(["Part", "Current", "Drop", "Power"], rows)
+    ref = f"relative to ground ({sol.ground})" if sol.ground else "relative to each island's reference"
+    out += ["", f"Node potentials, {ref}:"]
+    out += _table(["Node", "Potential"], [[n, format_value(sol.potential(n), "V")] for n in sol.nodes])
+    if sol.loops:
+        out += ["", f"Loop currents ({sol.loop_method}):"]
+        out += _table(["Loop", "Current", "Sense", "Parts"],
+                      [[lp.name, format_value(lp.current, "A"), lp.orientation or "-",
+                        " ".join(("+" if s > 0 else "-") + n for n, s in lp.parts)]
+                       for lp in sol.loops])
+    balance = sol.power_balance
+    tiny = abs(balance) <= 1e-9 * max(abs(sol.source_power), 1e-300)
+    shown = "0 W to rounding" if tiny else format_value(balance, "W")
+    out += ["", f"Sources deliver {format_value(sol.source_power, 'W')}; "
+                f"sum of absorbed power {shown} (Tellegen's theorem)."]
+    for n in sol.notes:
+        out.append(f"Note ({n.kind}): {n.message}")
+    out += ["", CAUTION]
+    return "\n".join(out)

@@ -1,0 +1,99 @@
+"""Writes the bundled demo sketches (run: python demo_circuits/make_demos.py).
+
+The scenarios are invented for the demos; the values are plausible, not
+measured.
+"""
+from __future__ import annotations
+
+from pathlib import Path
+
+from app.sketch.fileio import save_sketch
+from app.sketch.model import PlacedPart, Sketch, Wire
+
+HERE = Path(__file__).resolve().parent
+
+
+def _part(s: Sketch, kind: str, name: str, x: int, y: int, rot: int = 0, label: str = "", **values) -> None:
+    flags = {k: v for k, v in values.items() if isinstance(v, bool)}
+    vals = {k: float(v) for k, v in values.items() if not isinstance(v, bool)}
+    s.add_part(PlacedPart(kind, name, x, y, rot, False, vals, flags, label))
+
+
+def _wire(s: Sketch, x1: int, y1: int, x2: int, y2: int) -> None:
+    s.add_wire(Wire(x1, y1, x2, y2))
+
+
+def bench_supply_fixture() -> Sketch:
+    """A bench supply feeding a two-stage divider on a test fixture: two windows."""
+    s = Sketch()
+    _part(s, "cell", "B1", 0, 0, 90, "bench supply", emf=12.0, internal_resistance=0.05)
+    _part(s, "resistor", "R1", 0, 0, 0, "feed", resistance=47.0)
+    _part(s, "resistor", "R2", 4, 0, 90, "divider low", resistance=100.0)
+    _part(s, "resistor", "R3", 4, 0, 0, "stage 2 feed", resistance=220.0)
+    _part(s, "resistor", "R4", 8, 0, 90, "fixture load", resistance=330.0)
+    _wire(s, 0, 4, 4, 4)
+    _wire(s, 4, 4, 8, 4)
+    _part(s, "ground", "GND1", 0, 4)
+    return s
+
+
+def sensor_current_loop() -> Sketch:
+    """A 24 V loop supply, a 12 mA transmitter, and a receiver shunt with an indicator across it."""
+    s = Sketch()
+    _part(s, "cell", "B1", 0, 0, 90, "loop supply", emf=24.0, internal_resistance=0.5)
+    _part(s, "resistor", "R1", 0, 0, 0, "field cable", resistance=15.0)
+    _part(s, "current_source", "I1", 4, 0, 0, "transmitter", current=0.012)
+    _part(s, "resistor", "R2", 8, 0, 90, "receiver shunt", resistance=250.0)
+    _wire(s, 8, 0, 12, 0)
+    _part(s, "resistor", "R3", 12, 0, 90, "indicator", resistance=2200.0)
+    _wire(s, 12, 4, 8, 4)
+    _wire(s, 8, 4, 0, 4)
+    _part(s, "ground", "GND1", 0, 4)
+    return s
+
+
+def rover_parallel_packs() -> Sketch:
+    """Two garden-rover battery packs of unequal charge in parallel, driving the motor."""
+    s = Sketch()
+    _part(s, "cell", "B1", 0, 0, 90, "pack A", emf=12.6, internal_resistance=0.08)
+    _part(s, "cell", "B2", 4, 0, 90, "pack B", emf=12.2, internal_resistance=0.12)
+    _part(s, "switch", "S1", 8, 0, 0, "main switch", closed=True)
+    _part(s, "resistor", "R1", 12, 0, 90, "drive motor", resistance=1.5)
+    _wire(s, 0, 0, 8, 0)
+    _wire(s, 0, 4, 12, 4)
+    _part(s, "ground", "GND1", 0, 4)
+    return s
+
+
+def greenhouse_heater_strip(rungs: int = 20) -> Sketch:
+    """A 24 V feed along a greenhouse bench: cable resistance both ways, a heater at each bay."""
+    s = Sketch()
+    _part(s, "cell", "B1", 0, 0, 90, "24 V feed", emf=24.0, internal_resistance=0.02)
+    for k in range(rungs):
+        x = 4 * k
+        _part(s, "resistor", f"R{3 * k + 1}", x, 0, 0, "", resistance=0.04)       # feed conductor
+        _part(s, "resistor", f"R{3 * k + 2}", x + 4, 0, 90, f"bay {k + 1} heater", resistance=12.0)
+        _part(s, "resistor", f"R{3 * k + 3}", x, 4, 0, "", resistance=0.04)       # return conductor
+    _part(s, "switch", "S1", 4 * rungs, 0, 0, "end-of-line test", closed=False)
+    _part(s, "resistor", f"R{3 * rungs + 1}", 4 * rungs + 4, 0, 90, "test load", resistance=100.0)
+    _wire(s, 4 * rungs, 4, 4 * rungs + 4, 4)
+    _part(s, "ground", "GND1", 0, 4)
+    return s
+
+
+DEMOS = {
+    "bench_supply_fixture.lwsk": bench_supply_fixture,
+    "sensor_current_loop.lwsk": sensor_current_loop,
+    "rover_parallel_packs.lwsk": rover_parallel_packs,
+    "greenhouse_heater_strip.lwsk": greenhouse_heater_strip,
+}
+
+
+def main() -> None:
+    for name, make in DEMOS.items():
+        save_sketch(make(), HERE / name)
+        print("wrote", name)
+
+
+if __name__ == "__main__":
+    main()
