@@ -1,0 +1,382 @@
+"""The ``.lwsk`` sketch file: a versioned JSON document.
+
+A file is read in three steps, and nothing is built until all are done:
+it is checked as text (size, UTF-8, nesting depth), parsed as JSON (no
+duplicate keys, no NaN/Infinity, no over-long numbers), and every field is
+checked for type and range.  The first problem found is reported in one
+``SketchFileError`` whose message starts with the field's path, e.g.
+``parts[3].values.resistance: must be a finite number > 0``.  Nothing in a
+file is ever executed.  Writing is deterministic (fixed key order, floats by
+``repr``) and atomic (temporary file, fsync, ``os.replace``).  The format is
+described field by field in the developer guide; ``assets/lwsk.schema.json``
+is its JSON Schema.
+"""
+from __future__ import annotations
+
+import contextlib
+import json
+import math
+import os
+import re
+import stat
+import tempfile
+import unicodedata
+from collections.abc import Callable
+from typing import Any
+
+from .kinds import KINDS
+from .model import ROTATIONS, PlacedPart, Sketch, Wire
+
+__all__ = [
+    "SketchFileError", "save_sketch", "load_sketch", "dumps_sketch", "loads_sketch",
+    "FORMAT_TAG", "VERSION", "MAX_BYTES", "MAX_DEPTH", "GRID_LIMIT", "NAME_PATTERN", "LABEL_MAX",
+]
+
+FORMAT_TAG = "loopwright-sketch"
+VERSION = 1
+MAX_BYTES = 20 * 1024 * 1024
+MAX_DEPTH = 16                 # the format itself nests 4 deep
+MAX_NUMBER_DIGITS = 40
+GRID_LIMIT = 1_000_000         # |x|, |y| of any grid point
+NAME_PATTERN = r"[A-Za-z0-9][A-Za-z0-9_.+\-]{0,31}"
+LABEL_MAX = 200
+
+_TOP_FIELDS = ("format", "version", "parts", "wires")
+_PART_FIELDS = ("kind", "name", "x", "y", "rotation", "mirror", "values", "flags", "label")
+_PART_REQUIRED = ("kind", "name", "x", "y")
+_WIRE_FIELDS = ("x1", "y1", "x2", "y2")
+_NAME = re.compile(NAME_PATTERN)
+_IDENTIFIER = re.compile(r"[A-Za-z_][A-Za-z0-9_]*")
+_TOKENS = re.compile(r'"(?:[^"\\]|\\.)*"|[\[\]{}]')
+
+# Upgrades from an older version: _MIGRATIONS[n] turns a version-n document
+# (parsed JSON, not yet checked) into a version n+1 one.  Version 1 is the first.
+_MIGRATIONS: dict[int, Callable[[dict[str, Any]], dict[str, Any]]] = {}
+
+
+class SketchFileError(ValueError):
+    """A sketch file that cannot be read or written; ``field`` is the path of the bad field, if any."""
+
+    def __init__(self, message: str, field: str = "") -> None:
+        super().__init__(message)
+        self.field = field
+
+
+class _Bad(Exception):
+    """A problem at ``path``; turned into one SketchFileError."""
+
+    def __init__(self, path: str, message: str) -> None:
+        super().__init__(path, message)
+        self.path = path
+        self.message = message
+
+
+# -- text and JSON ------------------------------------------------------------
+def _show(text: str) -> str:
+    """A user's string quoted for a message: escaped, ASCII, short."""
+    shown = json.dumps(text)
+    return shown if len(shown) <= 42 else shown[:38] + '…"'
+
+
+def _key(base: str, key: str) -> str:
+    if _IDENTIFIER.fullmatch(key):
+        return f"{base}.{key}" if base else key
+    return f"{base}[{_show(key)}]"
+
+
+def _check_depth(text: str) -> None:
+    depth = 0
+    for token in _TOKENS.finditer(text):
+        c = token.group()
+        if c in "[{":
+            depth += 1
+            if depth > MAX_DEPTH:
+                raise SketchFileError(
+                    f"The file nests lists or objects more than {MAX_DEPTH} deep; "
+                    "it is not a Loopwright sketch.")
+        elif c in "]}":
+            depth -= 1
+
+
+def _pairs(pairs: list[tuple[str, Any]]) -> dict[str, Any]:
+    out: dict[str, Any] = {}
+    for k, v in pairs:
+        if k in out:
+            raise _Bad("", f"the key {_show(k)} appears twice in one object")
+        out[k] = v
+    return out
+
+
+def _constant(name: str) -> Any:
+    raise _Bad("", f"{name} is not a number a sketch can hold")
+
+
+def _integer(digits: str) -> int:
+    if len(digits) > MAX_NUMBER_DIGITS:
+        raise _Bad("", f"a number has more than {MAX_NUMBER_DIGITS} digits")
+    return int(digits)
+
+
+def _parse(data: str | bytes) -> Any:
+    if isinstance(data, bytes):
+        if len(data) > MAX_BYTES:
+            raise SketchFileError(f"The file is larger than {MAX_BYTES // 2**20} MB.")
+        try:
+            text = data.decode("utf-8-sig")
+        except UnicodeDecodeError as e:
+            raise SketchFileError(
+                f"The file is not UTF-8 text (a bad byte at position {e.start}).") from None
+    else:
+        text = data.removeprefix("\ufeff")
+        if len(text.encode("utf-8", "surrogatepass")) > MAX_BYTES:
+            raise SketchFileError(f"The text is larger than {MAX_BYTES // 2**20} MB.")
+    _check_depth(text)
+    try:
+        return json.loads(text, object_pairs_hook=_pairs, parse_constant=_constant,
+                          parse_int=_integer)
+    except _Bad as e:
+        raise SketchFileError(f"The file is not a valid sketch: {e.message}.") from None
+    except json.JSONDecodeError as e:
+        raise SketchFileError(
+            f"The file is not valid JSON: {e.msg} (line {e.lineno}, column {e.colno}).") from None
+    except (ValueError, RecursionError):
+        raise SketchFileError("The file is not valid JSON.") from None
+
+
+# -- checking fields -----------------------------------------------------------
+def _object(value: Any, path: str, allowed: tuple[str, ...], required: tuple[str, ...]) -> dict:
+    if not isinstance(value, dict):
+        raise _Bad(path, "must be an object")
+    for k in value:
+        if k not in allowed:
+            raise _Bad(_key(path, k), "unknown field")
+    for k in required:
+        if k not in value:
+            raise _Bad(_key(path, k), "missing")
+    return value
+
+
+def _list(value: Any, path: str) -> list:
+    if not isinstance(value, list):
+        raise _Bad(path, "must be a list")
+    return value
+
+
+def _int(value: Any, path: str) -> int:
+    if type(value) is not int:
+        raise _Bad(path, "must be a whole number")
+    if abs(value) > GRID_LIMIT:
+        raise _Bad(path, f"must be between {-GRID_LIMIT} and {GRID_LIMIT}")
+    return value
+
+
+def _bool(value: Any, path: str) -> bool:
+    if not isinstance(value, bool):
+        raise _Bad(path, "must be true or false")
+    return value
+
+
+def _text(value: Any, path: str, limit: int) -> str:
+    if not isinstance(value, str):
+        raise _Bad(path, "must be text")
+    if len(value) > limit:
+        raise _Bad(path, f"must be at most {limit} characters")
+    categories = {unicodedata.category(c) for c in value}
+    if "Cc" in categories:
+        raise _Bad(path, "must not hold control characters")
+    if "Cs" in categories:
+        raise _Bad(path, "holds a broken character (a lone surrogate)")
+    return value
+
+
+def _number(value: Any, path: str, zero_ok: bool) -> float:
+    bound = "≥ 0" if zero_ok else "> 0"
+    if type(value) not in (int, float) or not math.isfinite(value) \
+            or value < 0 or (value == 0 and not zero_ok):
+        raise _Bad(path, f"must be a finite number {bound}")
+    return float(value)
+
+
+def _part(doc: Any, path: str, seen: dict[str, str]) -> PlacedPart:
+    doc = _object(doc, path, _PART_FIELDS, _PART_REQUIRED)
+    kind = doc["kind"]
+    known = ", ".join(sorted(KINDS))
+    if not isinstance(kind, str):
+        raise _Bad(f"{path}.kind", f"must be text naming a part kind ({known})")
+    if kind not in KINDS:
+        raise _Bad(f"{path}.kind", f"unknown part kind {_show(kind)} (known: {known})")
+    spec = KINDS[kind]
+    name = doc["name"]
+    if not isinstance(name, str) or not _NAME.fullmatch(name):
+        raise _Bad(f"{path}.name", "must be 1 to 32 letters, digits or _ . + -, "
+                                   "starting with a letter or digit")
+    if name in seen:
+        raise _Bad(f"{path}.name", f"{name} is already the name of {seen[name]}")
+    seen[name] = path
+    x, y = _int(doc["x"], f"{path}.x"), _int(doc["y"], f"{path}.y")
+    rotation = doc.get("rotation", 0)
+    if type(rotation) is not int or rotation not in ROTATIONS:
+        raise _Bad(f"{path}.rotation", "must be 0, 90, 180 or 270")
+    mirror = _bool(doc.get("mirror", False), f"{path}.mirror")
+
+    fields = {f.key: f for f in spec.fields}
+    values = _object(doc.get("values", {}), f"{path}.values", tuple(fields), ())
+    checked_values = {k: _number(v, _key(f"{path}.values", k), fields[k].zero_ok)
+                      for k, v in values.items()}
+    flags = _object(doc.get("flags", {}), f"{path}.flags", spec.flags, ())
+    checked_flags = {k: _bool(v, _key(f"{path}.flags", k)) for k, v in flags.items()}
+    label = _text(doc.get("label", ""), f"{path}.label", LABEL_MAX)
+    return PlacedPart(kind, name, x, y, rotation, mirror, checked_values, checked_flags, label)
+
+
+def _wire(doc: Any, path: str) -> Wire:
+    doc = _object(doc, path, _WIRE_FIELDS, _WIRE_FIELDS)
+    x1, y1, x2, y2 = (_int(doc[k], f"{path}.{k}") for k in _WIRE_FIELDS)
+    if x1 != x2 and y1 != y2:
+        raise _Bad(path, "must run horizontally or vertically (x1 = x2 or y1 = y2)")
+    if (x1, y1) == (x2, y2):
+        raise _Bad(path, "both ends are at the same point")
+    return Wire(x1, y1, x2, y2)
+
+
+def _upgrade(doc: Any) -> dict[str, Any]:
+    """Check the format tag and version; bring an older document up to VERSION."""
+    if not isinstance(doc, dict):
+        raise _Bad("", "the file must hold one JSON object")
+    if doc.get("format") != FORMAT_TAG:
+        raise _Bad("format", f"this is not a Loopwright sketch (expected {_show(FORMAT_TAG)})")
+    version = doc.get("version")
+    if type(version) is not int or version < 1:
+        raise _Bad("version", "must be a whole number ≥ 1")
+    if version > VERSION:
+        raise _Bad("version", f"the file is version {version}, written by a newer Loopwright; "
+                              f"this one reads versions up to {VERSION}")
+    while version < VERSION:
+        doc = _MIGRATIONS[version](doc)
+        version += 1
+        if not isinstance(doc, dict) or doc.get("version") != version:
+            raise _Bad("version", f"the upgrade to version {version} went wrong")
+    return doc
+
+
+def _validate(doc: Any) -> tuple[list[PlacedPart], list[Wire]]:
+    doc = _object(_upgrade(doc), "", _TOP_FIELDS, _TOP_FIELDS)
+    seen: dict[str, str] = {}
+    parts = [_part(p, f"parts[{i}]", seen) for i, p in enumerate(_list(doc["parts"], "parts"))]
+    wires = [_wire(w, f"wires[{i}]") for i, w in enumerate(_list(doc["wires"], "wires"))]
+    return parts, wires
+
+
+def _error(bad: _Bad, lead: str = "") -> SketchFileError:
+    where = f"{bad.path}: " if bad.path else ""
+    return SketchFileError(f"{lead}{where}{bad.message}", bad.path)
+
+
+# -- public ---------------------------------------------------------------------
+def loads_sketch(text: str | bytes) -> Sketch:
+    """The sketch in ``text`` (a whole .lwsk document); raises SketchFileError."""
+    doc = _parse(text)
+    try:
+        parts, wires = _validate(doc)
+    except _Bad as bad:
+        raise _error(bad) from None
+    sketch = Sketch()
+    for part in parts:
+        sketch.add_part(part)
+    for wire in wires:
+        sketch.add_wire(wire)
+    return sketch
+
+
+def load_sketch(path: str | os.PathLike[str]) -> Sketch:
+    """Read the .lwsk file at ``path``; raises SketchFileError for any problem, reading included."""
+    try:
+        if os.stat(path).st_size > MAX_BYTES:
+            raise SketchFileError(f"The file is larger than {MAX_BYTES // 2**20} MB.")
+        with open(path, "rb") as f:
+            data = f.read(MAX_BYTES + 1)
+    except OSError as e:
+        raise SketchFileError(f"Could not read {os.fspath(path)}: {e.strerror or e}.") from e
+    return loads_sketch(data)
+
+
+def _part_doc(p: PlacedPart) -> dict[str, Any]:
+    order = [f.key for f in KINDS[p.kind].fields] if p.kind in KINDS else []
+    keys = [k for k in order if k in p.values] + sorted(k for k in p.values if k not in order)
+    return {
+        "kind": p.kind, "name": p.name, "x": p.x, "y": p.y,
+        "rotation": p.rotation, "mirror": p.mirror,
+        "values": {k: _as_float(p.values[k]) for k in keys},
+        "flags": {k: p.flags[k] for k in sorted(p.flags)},
+        "label": p.label,
+    }
+
+
+def _as_float(v: Any) -> Any:
+    return float(v) if isinstance(v, (int, float)) and not isinstance(v, bool) else v
+
+
+def _block(key: str, items: list[dict[str, Any]]) -> str:
+    if not items:
+        return f'  "{key}": []'
+    rows = ",\n".join("    " + json.dumps(item, ensure_ascii=False, allow_nan=False) for item in items)
+    return f'  "{key}": [\n{rows}\n  ]'
+
+
+def dumps_sketch(sketch: Sketch) -> str:
+    """The .lwsk text of ``sketch``: one part or wire per line, the same text for the same sketch.
+
+    Raises SketchFileError if the sketch holds something the format cannot
+    (the message names the field, as for loading).
+    """
+    doc = {
+        "format": FORMAT_TAG, "version": VERSION,
+        "parts": [_part_doc(p) for p in sketch.parts],
+        "wires": [{"x1": w.x1, "y1": w.y1, "x2": w.x2, "y2": w.y2} for w in sketch.wires],
+    }
+    try:
+        _validate(doc)  # never write a file that would not load
+    except _Bad as bad:
+        raise _error(bad, "The sketch cannot be saved: ") from None
+    head = f'{{\n  "format": {json.dumps(FORMAT_TAG)},\n  "version": {VERSION},\n'
+    return f'{head}{_block("parts", doc["parts"])},\n{_block("wires", doc["wires"])}\n}}\n'
+
+
+def save_sketch(sketch: Sketch, path: str | os.PathLike[str]) -> None:
+    """Write ``sketch`` to ``path`` atomically: a reader sees the old file or the whole new one.
+
+    The text goes to a temporary file in the same folder, is flushed and
+    fsynced, then renamed over ``path``.  An existing file keeps its
+    permissions.  Raises SketchFileError for an unsavable sketch and OSError
+    if the folder cannot be written.
+    """
+    data = dumps_sketch(sketch).encode("utf-8")
+    target = os.path.abspath(os.fspath(path))
+    folder = os.path.dirname(target)
+    try:
+        mode = stat.S_IMODE(os.stat(target).st_mode)
+    except FileNotFoundError:
+        mode = 0o644
+    fd, tmp = tempfile.mkstemp(prefix=f".{os.path.basename(target)}.", suffix=".tmp", dir=folder)
+    try:
+        with os.fdopen(fd, "wb") as f:
+            f.write(data)
+            f.flush()
+            os.fsync(f.fileno())
+        os.chmod(tmp, mode)
+        os.replace(tmp, target)
+    except BaseException:
+        with contextlib.suppress(OSError):
+            os.unlink(tmp)
+        raise
+    _sync_folder(folder)
+
+
+def _sync_folder(folder: str) -> None:
+    """Make the rename durable where the system allows syncing a folder (POSIX)."""
+    with contextlib.suppress(OSError, AttributeError):
+        fd = os.open(folder, os.O_RDONLY)
+        try:
+            os.fsync(fd)
+        finally:
+            os.close(fd)
