@@ -154,10 +154,13 @@ class Solution:
 
     @property
     def source_power(self) -> float:
-        """Power delivered by all cells and current sources, watts."""
-        kinds = self._topo.part_kind
-        src = [i for i, k in enumerate(kinds) if k in ("cell", "current_source")]
-        return float(-self.powers[src].sum()) if src else 0.0
+        """Total power delivered by the parts that deliver power (negative absorbed power), watts.
+
+        A source can also absorb (a cell being charged, a current source with
+        the voltage against it); it then counts with the loads.
+        """
+        p = self.powers
+        return float(-p[p < 0].sum())
 
     @property
     def power_balance(self) -> float:
