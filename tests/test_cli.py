@@ -1,0 +1,100 @@
+"""The loopwright command on the demo sketches and on bad input.
+
+Physics of the demos is checked against closed forms worked out here, not
+against the program's own output.
+"""
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from app.cli import main
+from app.sketch.fileio import save_sketch
+from app.sketch.model import PlacedPart, Sketch, Wire
+
+DEMOS = sorted((Path(__file__).resolve().parent.parent / "demo_circuits").glob("*.lwsk"))
+
+
+def run(capsys, *argv: str) -> tuple[int, str, str]:
+    code = main(list(argv))
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+def test_there_are_at_least_four_demos():
+    assert len(DEMOS) >= 4
+
+
+@pytest.mark.parametrize("demo", DEMOS, ids=lambda p: p.name)
+def test_every_demo_solves_in_text_and_json(capsys, demo):
+    code, out, err = run(capsys, "solve", str(demo))
+    assert code == 0, err
+    assert "Part" in out and "Current" in out and "Node potentials" in out
+    code, out, err = run(capsys, "solve", str(demo), "--json")
+    assert code == 0, err
+    data = json.loads(out)
+    assert {"parts", "nodes", "loops", "warnings"} <= set(data)
+    for name, rec in data["parts"].items():
+        assert not name.startswith("~")
+        assert set(rec) >= {"current", "voltage", "power"}
+        # absorbed power = V * I (passive convention, design notes)
+        assert rec["power"] == pytest.approx(rec["voltage"] * rec["current"], rel=1e-12, abs=1e-15)
+    # Tellegen's theorem (Philips Res. Rep. 7, 1952): absorbed powers sum to zero
+    total = sum(r["power"] for r in data["parts"].values())
+    scale = sum(abs(r["power"]) for r in data["parts"].values()) or 1.0
+    assert abs(total) <= 1e-9 * scale
+
+
+def test_parallel_packs_match_millman(capsys):
+    """Two cells with internal resistance in parallel on a load: Millman's theorem
+    V = (E1/r1 + E2/r2) / (1/r1 + 1/r2 + 1/RL) (J. Millman, Proc. IRE 28, 1940)."""
+    code, out, _ = run(capsys, "solve", str(DEMOS[0].parent / "rover_parallel_packs.lwsk"), "--json")
+    assert code == 0
+    data = json.loads(out)
+    e1, r1, e2, r2, rl = 12.6, 0.08, 12.2, 0.12, 1.5   # the values the demo was written with
+    v = (e1 / r1 + e2 / r2) / (1 / r1 + 1 / r2 + 1 / rl)
+    assert data["parts"]["R1"]["voltage"] == pytest.approx(v, rel=1e-12)
+    assert data["parts"]["B1"]["current"] == pytest.approx(-(e1 - v) / r1, rel=1e-12)
+    assert data["parts"]["B2"]["current"] == pytest.approx(-(e2 - v) / r2, rel=1e-12)
+
+
+
+
+def test_circuit_error_exits_2_and_names_the_parts(capsys, tmp_path):
+    f = tmp_path / "short.lwsk"
+    s = Sketch()
+    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, values={"emf": 9.0, "internal_resistance": 0.0}))
+    s.add_wire(Wire(0, 0, 2, 0))
+    s.add_wire(Wire(2, 0, 2, 4))
+    s.add_wire(Wire(2, 4, 0, 4))
+    save_sketch(s, f)
+    code, out, err = run(capsys, "solve", str(f))
+    assert code == 2
+    assert "B1" in err and "short" in err
+    assert "Traceback" not in err
+
+
+@pytest.mark.parametrize("content", [b"", b"{not json", b"\x00\xff" * 10, b'{"format": "something else"}'])
+def test_file_error_exits_1_with_a_message(capsys, tmp_path, content):
+    f = tmp_path / "bad.lwsk"
+    f.write_bytes(content)
+    code, out, err = run(capsys, "solve", str(f))
+    assert code == 1
+    assert err.startswith("loopwright: ") and "Traceback" not in err
+
+
+def test_missing_file_exits_1(capsys, tmp_path):
+    code, _, err = run(capsys, "solve", str(tmp_path / "nowhere.lwsk"))
+    assert code == 1 and "loopwright:" in err
+
+
+def test_console_script_runs_as_a_module(tmp_path):
+    demo = DEMOS[0]
+    r = subprocess.run([sys.executable, "-m", "app.cli", "solve", str(demo), "--json"],
+                       capture_output=True, text=True, timeout=120)
+    assert r.returncode == 0, r.stderr
+    assert "parts" in json.loads(r.stdout)
