@@ -1,0 +1,326 @@
+"""What the solution writes onto the drawing.
+
+Per part: an arrow in the direction of conventional current with its value,
+and the drop with + and − marks at the terminals. Per node: a potential tag.
+Per loop: a circulating arrow inside its window with the loop current. When
+the circuit cannot be solved, a note beside the parts named by the error.
+"""
+from __future__ import annotations
+
+import math
+
+from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
+from PySide6.QtGui import QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF, QTextOption
+from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
+
+from ..units import format_value
+from .items import Z_MARK, Z_NOTE, PartItem, _paint_warning_sign
+from .theme import current_theme, small_font
+
+__all__ = ["CurrentMark", "DropMark", "PotentialTag", "LoopMark", "FaultNote", "LAYERS"]
+
+LAYERS = {
+    "currents": "Current arrows",
+    "drops": "Voltage drops",
+    "potentials": "Node potentials",
+    "loops": "Loop currents",
+}
+
+_FM: QFontMetricsF | None = None
+
+
+def _fm() -> QFontMetricsF:
+    global _FM
+    if _FM is None:
+        _FM = QFontMetricsF(small_font())
+    return _FM
+
+
+def _arrow_head(tip: QPointF, direction: QPointF, size: float = 5.0) -> QPolygonF:
+    dx, dy = direction.x(), direction.y()
+    back = QPointF(tip.x() - dx * size, tip.y() - dy * size)
+    nx, ny = -dy * size * 0.6, dx * size * 0.6
+    return QPolygonF([tip, QPointF(back.x() + nx, back.y() + ny), QPointF(back.x() - nx, back.y() - ny)])
+
+
+def _align(o: PartItem) -> int:
+    if o.horizontal:
+        return int(Qt.AlignmentFlag.AlignCenter)
+    h = Qt.AlignmentFlag.AlignLeft if o.side > 0 else Qt.AlignmentFlag.AlignRight
+    return int(h | Qt.AlignmentFlag.AlignVCenter)
+
+
+class _PartMark(QGraphicsItem):
+    """A mark that belongs to a part and lays itself out beside it."""
+
+    LINE = 0
+    ROOM = 0  # space kept beside the text for an arrow on upright parts
+
+    def __init__(self, parent: PartItem) -> None:
+        super().__init__(parent)
+        self.setZValue(Z_MARK)
+        self.value: float | None = None
+        self.text = ""
+        self._bounds = QRectF()
+        self.setVisible(False)
+
+    @property
+    def owner(self) -> PartItem:
+        return self.parentItem()  # type: ignore[return-value]
+
+    def set_value(self, value: float | None) -> None:
+        """Show ``value`` (None hides the mark: no valid result)."""
+        if value is None:
+            self.value = None
+            self.setVisible(False)
+            return
+        if value != self.value:
+            self.value = value
+            self.text = self._format(value)
+            self.relayout()
+        self.setVisible(self._layer_on)
+
+    _layer_on = True
+
+    def set_layer(self, on: bool) -> None:
+        self._layer_on = on
+        self.setVisible(on and self.value is not None)
+
+    def _format(self, value: float) -> str:
+        raise NotImplementedError
+
+    def relayout(self) -> None:
+        self.prepareGeometryChange()
+        o = self.owner
+        fm = _fm()
+        w = fm.horizontalAdvance(self.text) + 2 + (0 if o.horizontal else self.ROOM)
+        h = fm.height()
+        out = o.outline
+        self.text_rect = o.line_rect(self.LINE, w)
+        self._bounds = self.text_rect.united(out.adjusted(-16, -16, 16, 16)) if self.value is not None else QRectF()
+        self.update()
+
+    def boundingRect(self) -> QRectF:
+        return self._bounds
+
+    def shape(self) -> QPainterPath:
+        path = QPainterPath()
+        path.addRect(self.text_rect)
+        return path
+
+
+class CurrentMark(_PartMark):
+    """Arrow in the direction of conventional current, with the current's size."""
+
+    LINE = 2
+    ROOM = 14
+
+    def _format(self, value: float) -> str:
+        return format_value(abs(value), "A")
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        if self.value is None:
+            return
+        th = current_theme()
+        o = self.owner
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        painter.setPen(QPen(th.current, 1.4))
+        painter.setFont(small_font())
+        tr = self.text_rect
+        if not o.horizontal:
+            tr = tr.adjusted(self.ROOM, 0, 0, 0) if o.side > 0 else tr.adjusted(0, 0, -self.ROOM, 0)
+        painter.drawText(tr, _align(o), self.text)
+        t0, t1 = o.terminal_points()[:2]
+        d = t1 - t0
+        length = math.hypot(d.x(), d.y()) or 1.0
+        u = QPointF(d.x() / length, d.y() / length)
+        if self.value < 0:
+            u = -u
+        if self.value == 0:
+            return
+        c = o.centre
+        r = self.text_rect
+        if o.horizontal:
+            mid = QPointF(r.left() - 10, r.center().y())
+        elif o.side > 0:
+            mid = QPointF(r.left() + 6, r.center().y() + 1)
+        else:
+            mid = QPointF(r.right() - 6, r.center().y() + 1)
+        a, b = mid - u * 8, mid + u * 8
+        painter.drawLine(QLineF(a, b - u * 3))
+        painter.setBrush(th.current)
+        painter.drawPolygon(_arrow_head(b, u))
+
+
+class DropMark(_PartMark):
+    """The drop across the part, with + at its higher terminal and − at its lower."""
+
+    LINE = 3
+
+    def _format(self, value: float) -> str:
+        return format_value(abs(value), "V")
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        if self.value is None:
+            return
+        th = current_theme()
+        o = self.owner
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        pen = QPen(th.drop, 1.4)
+        painter.setPen(pen)
+        painter.setFont(small_font())
+        painter.drawText(self.text_rect, _align(o), self.text)
+        if self.value == 0:
+            return
+        t0, t1 = o.terminal_points()[:2]
+        high, low = (t0, t1) if self.value > 0 else (t1, t0)
+        d = low - high
+        length = math.hypot(d.x(), d.y()) or 1.0
+        u = QPointF(d.x() / length, d.y() / length)
+        side = QPointF(0, 9 * o.side) if o.horizontal else QPointF(9 * o.side, 0)
+        r = 3.2
+        p = high + u * 9 + side
+        painter.drawLine(QLineF(p.x() - r, p.y(), p.x() + r, p.y()))
+        painter.drawLine(QLineF(p.x(), p.y() - r, p.x(), p.y() + r))
+        m = low - u * 9 + side
+        painter.drawLine(QLineF(m.x() - r, m.y(), m.x() + r, m.y()))
+
+
+class PotentialTag(QGraphicsItem):
+    """A small tag with a node's potential, hung from one of its grid points."""
+
+    CORNERS = ((-1, -1), (1, -1), (-1, 1), (1, 1))
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.setZValue(Z_MARK)
+        self.text = ""
+        self.active = False
+        self._rect = QRectF()
+        self._corner = (-1, -1)
+
+    def set_value(self, value: float) -> None:
+        self.text = format_value(value, "V")
+        self.set_corner(self._corner)
+
+    def rect_at(self, corner: tuple[int, int]) -> QRectF:
+        """The tag's box when hung towards ``corner`` ((-1, -1) = up and left)."""
+        fm = _fm()
+        w = fm.horizontalAdvance(self.text) + 8
+        h = fm.height() + 2
+        x = -w - 6 if corner[0] < 0 else 6
+        y = -h - 6 if corner[1] < 0 else 6
+        return QRectF(x, y, w, h)
+
+    def set_corner(self, corner: tuple[int, int]) -> None:
+        self.prepareGeometryChange()
+        self._corner = corner
+        self._rect = self.rect_at(corner)
+        self.update()
+
+    def boundingRect(self) -> QRectF:
+        return self._rect.united(QRectF(-1, -1, 2, 2)).adjusted(-1, -1, 1, 1)
+
+    def shape(self) -> QPainterPath:
+        path = QPainterPath()
+        path.addRect(self._rect)
+        return path
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        th = current_theme()
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        painter.setPen(QPen(th.potential, 0.9))
+        r = self._rect
+        corner = QPointF(r.right() if self._corner[0] < 0 else r.left(),
+                         r.bottom() if self._corner[1] < 0 else r.top())
+        painter.drawLine(QLineF(QPointF(0, 0), corner))
+        painter.setBrush(th.tag)
+        painter.drawRoundedRect(self._rect, 3, 3)
+        painter.setFont(small_font())
+        painter.drawText(self._rect, int(Qt.AlignmentFlag.AlignCenter), self.text)
+
+
+class LoopMark(QGraphicsItem):
+    """A circulating arrow inside a loop's window, with the loop's name and current."""
+
+    R = 9.0
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.setZValue(Z_MARK)
+        self.clockwise = True
+        self.text = ""
+        self.active = False
+        self._text_rect = QRectF()
+
+    def set_loop(self, name: str, current: float, clockwise: bool) -> None:
+        self.prepareGeometryChange()
+        self.clockwise = clockwise
+        self.text = f"{name} {format_value(current, 'A')}"
+        fm = _fm()
+        w = fm.horizontalAdvance(self.text) + 4
+        self._text_rect = QRectF(-w / 2, self.R + 4, w, fm.height())
+        self.update()
+
+    def boundingRect(self) -> QRectF:
+        r = self.R + 4
+        return QRectF(-r, -r, 2 * r, 2 * r).united(self._text_rect)
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        th = current_theme()
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        pen = QPen(th.loop, 1.5)
+        pen.setCapStyle(Qt.PenCapStyle.RoundCap)
+        painter.setPen(pen)
+        painter.setBrush(Qt.BrushStyle.NoBrush)
+        r = self.R
+        rect = QRectF(-r, -r, 2 * r, 2 * r)
+        # Qt angles: counter-clockwise positive (y up); the gap sits at the top
+        start, span = (60 * 16, 300 * 16) if not self.clockwise else (120 * 16, -300 * 16)
+        painter.drawArc(rect, start, span)
+        end_deg = (start + span) / 16.0
+        tip = QPointF(r * math.cos(math.radians(end_deg)), -r * math.sin(math.radians(end_deg)))
+        # tangent along the direction of travel
+        sgn = 1 if span > 0 else -1
+        tx = -math.sin(math.radians(end_deg)) * sgn
+        ty = -math.cos(math.radians(end_deg)) * sgn
+        painter.setBrush(th.loop)
+        painter.drawPolygon(_arrow_head(tip + QPointF(tx, ty) * 2, QPointF(tx, ty), 6))
+        painter.setFont(small_font())
+        painter.drawText(self._text_rect, int(Qt.AlignmentFlag.AlignCenter), self.text)
+
+
+class FaultNote(QGraphicsItem):
+    """The error message, in a box beside the parts it names."""
+
+    WIDTH = 250.0
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.setZValue(Z_NOTE)
+        self.text = ""
+        self._rect = QRectF()
+
+    def set_message(self, message: str) -> None:
+        self.prepareGeometryChange()
+        self.text = "Not solved: " + message
+        fm = _fm()
+        r = fm.boundingRect(QRectF(0, 0, self.WIDTH, 1000), int(Qt.TextFlag.TextWordWrap), self.text)
+        self._rect = QRectF(0, 0, self.WIDTH + 30, r.height() + 10)
+        self.update()
+
+    def boundingRect(self) -> QRectF:
+        return self._rect.adjusted(-2, -2, 2, 2)
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        th = current_theme()
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        painter.setPen(QPen(th.fault, 1.3))
+        painter.setBrush(th.note)
+        painter.drawRoundedRect(self._rect, 4, 4)
+        _paint_warning_sign(painter, QPointF(13, 17), th.fault)
+        painter.setPen(th.ink)
+        painter.setFont(small_font())
+        opt = QTextOption()
+        opt.setWrapMode(QTextOption.WrapMode.WordWrap)
+        painter.drawText(self._rect.adjusted(26, 5, -4, -5), self.text, opt)

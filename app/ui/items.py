@@ -1,0 +1,374 @@
+"""Canvas items that draw the document: parts, wires, junction dots, loose ends.
+
+Every item paints in scene units with its origin on a grid point; text is
+never rotated with the symbol, so labels stay upright whatever way a part
+is turned.
+"""
+from __future__ import annotations
+
+from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
+from PySide6.QtGui import (QBrush, QColor, QFontMetricsF, QPainter, QPainterPath,
+                           QPainterPathStroker, QPen, QPolygonF, QTransform)
+from PySide6.QtWidgets import QGraphicsItem, QStyle, QStyleOptionGraphicsItem, QWidget
+
+from ..sketch.kinds import kind_spec
+from ..sketch.model import PlacedPart, Wire
+from ..units import format_value
+from .symbols import IEC, body_centre, paint_symbol, symbol_outline
+from .theme import GRID, current_theme, label_font
+
+__all__ = ["PartItem", "WireItem", "JunctionDot", "LooseEnd", "RubberWire", "GridCursor",
+           "value_text", "to_scene", "Z_WIRE", "Z_PART", "Z_MARK", "Z_NOTE"]
+
+Z_WIRE, Z_PART, Z_DOT, Z_MARK, Z_NOTE, Z_TOOL = 1.0, 2.0, 3.0, 4.0, 6.0, 8.0
+INK_WIDTH = 1.7
+
+
+def to_scene(p: tuple[int, int]) -> QPointF:
+    """The scene position of a grid point."""
+    return QPointF(p[0] * GRID, p[1] * GRID)
+
+
+def value_text(part: PlacedPart) -> str:
+    """The value line printed beside a part (``4.70 kΩ``, ``9.00 V  r 0.50 Ω``, ``open``)."""
+    if part.kind == "switch":
+        return "closed" if part.flag("closed") else "open"
+    spec = kind_spec(part.kind)
+    bits = []
+    for f in spec.fields:
+        v = part.value(f.key)
+        if f.key == "internal_resistance":
+            if v:
+                bits.append("r " + format_value(v, f.unit))
+        else:
+            bits.append(format_value(v, f.unit))
+    return "  ".join(bits)
+
+
+def ink_pen(color: QColor, width: float = INK_WIDTH) -> QPen:
+    pen = QPen(color, width)
+    pen.setCapStyle(Qt.PenCapStyle.RoundCap)
+    pen.setJoinStyle(Qt.PenJoinStyle.RoundJoin)
+    pen.setCosmetic(False)
+    return pen
+
+
+class PartItem(QGraphicsItem):
+    """One placed part: its symbol, designator and value; flagged when an error names it."""
+
+    def __init__(self, part: PlacedPart, style: str = IEC, ghost: bool = False) -> None:
+        super().__init__()
+        self.style = style
+        self.ghost = ghost
+        self.flagged = False
+        self.side = -1
+        self.part = part
+        self._fm = QFontMetricsF(label_font())
+        if not ghost:
+            self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemIsSelectable, True)
+        self.setZValue(Z_TOOL if ghost else Z_PART)
+        self.setAcceptHoverEvents(False)
+        self._layout()
+
+    # -- geometry ---------------------------------------------------------------
+    def set_part(self, part: PlacedPart) -> None:
+        """Show ``part`` (a moved, turned or re-valued version)."""
+        self.prepareGeometryChange()
+        self.part = part
+        self._layout()
+        self.update()
+        for child in self.childItems():
+            relayout = getattr(child, "relayout", None)
+            if relayout:
+                relayout()
+
+    def set_style(self, style: str) -> None:
+        self.style = style
+        self.update()
+
+    def set_side(self, side: int) -> None:
+        """Put the label and marks above/left (-1) or below/right (+1) of the body."""
+        if side != self.side:
+            self.prepareGeometryChange()
+            self.side = side
+            self._layout()
+            self.update()
+            for child in self.childItems():
+                relayout = getattr(child, "relayout", None)
+                if relayout:
+                    relayout()
+
+    def line_rect(self, k: int, width: float) -> QRectF:
+        """Where text line ``k`` goes (0 = designator, then value, current, drop) for ``width``."""
+        h = self._fm.height()
+        c, out = self.centre, self.outline
+        if self.horizontal:
+            k = max(k - 1, 0)  # designator and value share the first line
+            y = out.bottom() - 2 + k * h if self.side > 0 else out.top() + 2 - (k + 1) * h
+            return QRectF(c.x() - width / 2, y, width, h)
+        y = c.y() - 2 * h + k * h
+        x = out.right() + 2 if self.side > 0 else out.left() - 2 - width
+        return QRectF(x, y, width, h)
+
+    def set_flagged(self, flagged: bool) -> None:
+        if flagged != self.flagged:
+            self.prepareGeometryChange()
+            self.flagged = flagged
+            self._layout()
+            self.update()
+
+    def _layout(self) -> None:
+        p = self.part
+        self.setPos(p.x * GRID, p.y * GRID)
+        t = QTransform()
+        t.rotate(p.rotation)
+        if p.mirror:
+            t.scale(1, -1)
+        self.symbol_transform = t
+        self.outline = t.mapRect(symbol_outline(p.kind))
+        self.centre = t.map(body_centre(p.kind))
+        self.horizontal = p.rotation % 180 == 0
+        if p.kind == "ground":
+            self.lines = []
+        elif self.horizontal:
+            self.lines = [f"{p.name}  {value_text(p)}"]
+        else:
+            self.lines = [p.name, value_text(p)]
+        self.setToolTip(f"{p.name}: {p.label}" if p.label else p.name)
+        self.label_rect = self._label_rect()
+        rect = self.outline.united(self.label_rect) if self.lines else QRectF(self.outline)
+        self._bounds = rect.adjusted(-6, -6, 6, 6)
+
+    def _label_rect(self) -> QRectF:
+        if not self.lines:
+            return QRectF()
+        w = max(self._fm.horizontalAdvance(s) for s in self.lines) + 2
+        r = self.line_rect(0, w)
+        return r.united(self.line_rect(len(self.lines) - 1, w))
+
+    def terminal_points(self) -> list[QPointF]:
+        """Terminals in item coordinates."""
+        x0, y0 = self.part.x, self.part.y
+        return [QPointF((x - x0) * GRID, (y - y0) * GRID) for x, y in self.part.terminals()]
+
+    def boundingRect(self) -> QRectF:
+        return self._bounds
+
+    def shape(self) -> QPainterPath:
+        path = QPainterPath()
+        path.addRect(self.outline)
+        if self.lines:
+            path.addRect(self.label_rect)
+        return path
+
+    # -- painting -----------------------------------------------------------------
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        th = current_theme()
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        selected = bool(option.state & QStyle.StateFlag.State_Selected)
+        colour = th.ghost if self.ghost else th.ink
+        if selected:
+            painter.setPen(Qt.PenStyle.NoPen)
+            halo = QColor(th.select)
+            halo.setAlpha(40)
+            painter.setBrush(halo)
+            painter.drawRoundedRect(self.outline.adjusted(-3, -3, 3, 3), 5, 5)
+            pen = QPen(th.select, 1.2, Qt.PenStyle.DashLine)
+            painter.setPen(pen)
+            painter.setBrush(Qt.BrushStyle.NoBrush)
+            painter.drawRoundedRect(self.outline.adjusted(-3, -3, 3, 3), 5, 5)
+        if self.flagged:
+            pen = QPen(th.fault, 2.2, Qt.PenStyle.DashLine)
+            painter.setPen(pen)
+            painter.setBrush(Qt.BrushStyle.NoBrush)
+            painter.drawRoundedRect(self.outline.adjusted(-5, -5, 5, 5), 6, 6)
+            _paint_warning_sign(painter, self.outline.topLeft() + QPointF(-4, -4), th.fault)
+        painter.save()
+        painter.setTransform(self.symbol_transform, True)
+        painter.setPen(ink_pen(colour))
+        painter.setBrush(Qt.BrushStyle.NoBrush)
+        paint_symbol(painter, self.part.kind, self.style, self.part.flag("closed"))
+        painter.restore()
+        if self.lines:
+            painter.setFont(label_font())
+            fm = self._fm
+            r = self.label_rect
+            align = (Qt.AlignmentFlag.AlignHCenter if self.horizontal else
+                     Qt.AlignmentFlag.AlignLeft if self.side > 0 else Qt.AlignmentFlag.AlignRight)
+            for k, line in enumerate(self.lines):
+                painter.setPen(colour if k == 0 else (th.ghost if self.ghost else th.label))
+                lr = QRectF(r.left(), r.top() + k * fm.height(), r.width(), fm.height())
+                painter.drawText(lr, int(align | Qt.AlignmentFlag.AlignVCenter), line)
+
+
+def _paint_warning_sign(p: QPainter, at: QPointF, colour: QColor) -> None:
+    """A small triangle with an exclamation mark: the shape that marks a fault."""
+    s = 11.0
+    tri = QPolygonF([at + QPointF(0, -s), at + QPointF(-s * 0.6, 0.2 * s), at + QPointF(s * 0.6, 0.2 * s)])
+    p.setPen(QPen(colour, 1.2))
+    p.setBrush(QBrush(colour))
+    p.drawPolygon(tri)
+    p.setPen(QPen(QColor("white"), 1.6))
+    p.drawLine(QLineF(at + QPointF(0, -s * 0.65), at + QPointF(0, -s * 0.2)))
+    p.drawPoint(at + QPointF(0, -s * 0.02))
+
+
+class WireItem(QGraphicsItem):
+    """One straight wire; ``index`` is its place in the document's wire list."""
+
+    PICK = 7.0
+
+    def __init__(self, wire: Wire, index: int) -> None:
+        super().__init__()
+        self.index = index
+        self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemIsSelectable, True)
+        self.setZValue(Z_WIRE)
+        self.wire = wire
+        self._layout()
+
+    def set_wire(self, wire: Wire) -> None:
+        self.prepareGeometryChange()
+        self.wire = wire
+        self._layout()
+        self.update()
+
+    def _layout(self) -> None:
+        w = self.wire
+        self.setPos(w.x1 * GRID, w.y1 * GRID)
+        self.line = QLineF(0, 0, (w.x2 - w.x1) * GRID, (w.y2 - w.y1) * GRID)
+        r = QRectF(self.line.p1(), self.line.p2()).normalized()
+        self._bounds = r.adjusted(-self.PICK, -self.PICK, self.PICK, self.PICK)
+
+    def boundingRect(self) -> QRectF:
+        return self._bounds
+
+    def shape(self) -> QPainterPath:
+        path = QPainterPath(self.line.p1())
+        path.lineTo(self.line.p2())
+        stroker = QPainterPathStroker()
+        stroker.setWidth(self.PICK * 1.4)
+        return stroker.createStroke(path)
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        th = current_theme()
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        if option.state & QStyle.StateFlag.State_Selected:
+            halo = QColor(th.select)
+            halo.setAlpha(90)
+            painter.setPen(ink_pen(halo, 7))
+            painter.drawLine(self.line)
+        painter.setPen(ink_pen(th.ink))
+        painter.drawLine(self.line)
+
+
+class JunctionDot(QGraphicsItem):
+    """A filled dot where three or more conductors join."""
+
+    R = 3.6
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.setZValue(Z_DOT)
+
+    def boundingRect(self) -> QRectF:
+        return QRectF(-self.R - 1, -self.R - 1, 2 * self.R + 2, 2 * self.R + 2)
+
+    def shape(self) -> QPainterPath:
+        path = QPainterPath()
+        path.addEllipse(QPointF(0, 0), self.R, self.R)
+        return path
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        ink = current_theme().ink
+        painter.setPen(Qt.PenStyle.NoPen)
+        painter.setBrush(ink)
+        painter.drawEllipse(QPointF(0, 0), self.R, self.R)
+
+
+class LooseEnd(QGraphicsItem):
+    """An open ring with a cross-tick at a terminal or wire end that connects to nothing."""
+
+    R = 4.5
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.setZValue(Z_DOT)
+        self.setToolTip("Not connected")
+
+    def boundingRect(self) -> QRectF:
+        r = self.R + 3
+        return QRectF(-r, -r, 2 * r, 2 * r)
+
+    def shape(self) -> QPainterPath:
+        path = QPainterPath()
+        path.addEllipse(QPointF(0, 0), self.R, self.R)
+        return path
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        th = current_theme()
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        painter.setPen(QPen(th.loose, 1.5))
+        painter.setBrush(th.paper)
+        painter.drawEllipse(QPointF(0, 0), self.R, self.R)
+        d = self.R * 0.55
+        painter.drawLine(QLineF(-d, -d, d, d))
+
+
+class RubberWire(QGraphicsItem):
+    """The wire being drawn: the right-angle path from the last point to the pointer."""
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.setZValue(Z_TOOL)
+        self.points: list[QPointF] = []
+
+    def set_points(self, points: list[QPointF]) -> None:
+        self.prepareGeometryChange()
+        self.points = points
+        self.update()
+
+    def boundingRect(self) -> QRectF:
+        if not self.points:
+            return QRectF()
+        xs = [p.x() for p in self.points]
+        ys = [p.y() for p in self.points]
+        return QRectF(min(xs) - 6, min(ys) - 6, max(xs) - min(xs) + 12, max(ys) - min(ys) + 12)
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        if len(self.points) < 2:
+            return
+        th = current_theme()
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        pen = ink_pen(th.ghost, 1.8)
+        pen.setStyle(Qt.PenStyle.DashLine)
+        painter.setPen(pen)
+        painter.drawPolyline(QPolygonF(self.points))
+        painter.setBrush(th.ghost)
+        painter.drawEllipse(self.points[0], 3, 3)
+
+
+class GridCursor(QGraphicsItem):
+    """The keyboard cursor: a cross on a grid point, moved with the arrow keys."""
+
+    S = 9.0
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.setZValue(Z_TOOL + 1)
+
+    def boundingRect(self) -> QRectF:
+        s = self.S + 2
+        return QRectF(-s, -s, 2 * s, 2 * s)
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        th = current_theme()
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        painter.setPen(QPen(th.ghost, 1.4))
+        s = self.S
+        painter.drawLine(QLineF(-s, 0, -3, 0))
+        painter.drawLine(QLineF(3, 0, s, 0))
+        painter.drawLine(QLineF(0, -s, 0, -3))
+        painter.drawLine(QLineF(0, 3, 0, s))
+        painter.setBrush(Qt.BrushStyle.NoBrush)
+        painter.drawRect(QRectF(-2, -2, 4, 4))

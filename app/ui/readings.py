@@ -1,0 +1,102 @@
+"""The Readings panel: every designated part with its current, drop and power.
+
+Rows follow the document (designators in natural order: R2 before R10);
+values come from the newest solution and read "—" while there is none.
+"""
+from __future__ import annotations
+
+import re
+
+from PySide6.QtCore import QAbstractTableModel, QModelIndex, QPersistentModelIndex, Qt
+from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QTableView
+
+from ..sketch.model import Sketch
+from ..units import format_value
+
+__all__ = ["ReadingsModel", "ReadingsView", "natural_key"]
+
+COLUMNS = ("Part", "Current", "Drop", "Power")
+_UNITS = (None, "A", "V", "W")
+
+
+def natural_key(name: str) -> tuple:
+    """Sort key putting R2 before R10."""
+    return tuple(int(t) if t.isdigit() else t for t in re.split(r"(\d+)", name))
+
+
+class ReadingsModel(QAbstractTableModel):
+    """Table of part, current (first terminal to second), drop and absorbed power."""
+
+    def __init__(self, parent=None) -> None:
+        super().__init__(parent)
+        self.names: list[str] = []
+        self.rows: dict[str, tuple[float, float, float]] = {}
+        self._row_of: dict[str, int] = {}
+
+    def set_parts(self, sketch: Sketch) -> None:
+        """Follow the document's parts (ground symbols are left out)."""
+        names = sorted((p.name for p in sketch.parts if p.kind != "ground"), key=natural_key)
+        if names != self.names:
+            self.beginResetModel()
+            self.names = names
+            self._row_of = {n: i for i, n in enumerate(names)}
+            self.endResetModel()
+
+    def set_readings(self, readings: dict[str, tuple[float, float, float]]) -> None:
+        """Show new values (an empty dict shows dashes)."""
+        self.rows = readings
+        if self.names:
+            self.dataChanged.emit(self.index(0, 1), self.index(len(self.names) - 1, 3))
+
+    def row_of(self, name: str) -> int:
+        return self._row_of.get(name, -1)
+
+    def rowCount(self, parent: QModelIndex | QPersistentModelIndex = QModelIndex()) -> int:
+        return 0 if parent.isValid() else len(self.names)
+
+    def columnCount(self, parent: QModelIndex | QPersistentModelIndex = QModelIndex()) -> int:
+        return 0 if parent.isValid() else len(COLUMNS)
+
+    def text(self, row: int, column: int) -> str:
+        name = self.names[row]
+        if column == 0:
+            return name
+        r = self.rows.get(name)
+        if r is None:
+            return "—"
+        return format_value(r[column - 1], _UNITS[column])
+
+    def data(self, index: QModelIndex | QPersistentModelIndex, role: int = Qt.ItemDataRole.DisplayRole):
+        if not index.isValid():
+            return None
+        if role == Qt.ItemDataRole.DisplayRole:
+            return self.text(index.row(), index.column())
+        if role == Qt.ItemDataRole.TextAlignmentRole and index.column() > 0:
+            return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
+        if role == Qt.ItemDataRole.ToolTipRole and index.column() == 1:
+            return "Current through the part from its first terminal to its second"
+        if role == Qt.ItemDataRole.ToolTipRole and index.column() == 3:
+            return "Power absorbed; negative means the part delivers power"
+        return None
+
+    def headerData(self, section: int, orientation: Qt.Orientation, role: int = Qt.ItemDataRole.DisplayRole):
+        if role == Qt.ItemDataRole.DisplayRole and orientation == Qt.Orientation.Horizontal:
+            return COLUMNS[section]
+        return None
+
+
+class ReadingsView(QTableView):
+    """The table, selecting whole rows."""
+
+    def __init__(self, model: ReadingsModel, parent=None) -> None:
+        super().__init__(parent)
+        self.setModel(model)
+        self.setSelectionBehavior(QAbstractItemView.SelectionBehavior.SelectRows)
+        self.setSelectionMode(QAbstractItemView.SelectionMode.ExtendedSelection)
+        self.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
+        self.verticalHeader().setVisible(False)
+        self.verticalHeader().setDefaultSectionSize(22)
+        self.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Stretch)
+        self.setAlternatingRowColors(True)
+        self.setShowGrid(False)
+        self.setWordWrap(False)

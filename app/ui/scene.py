@@ -1,0 +1,346 @@
+"""The scene: a view of the sketch document, patched from its change notifications.
+
+The scene never edits the document; it follows it. After each change (or
+batch of changes) it brings its items in line with the model by comparing
+object identity, so a move touches only the items that moved. Results of a
+solve are laid on top by ``show_solution`` / ``show_fault``.
+"""
+from __future__ import annotations
+
+from collections.abc import Iterable, Iterator
+from contextlib import contextmanager
+
+from PySide6.QtCore import QRectF, Signal
+from PySide6.QtWidgets import QGraphicsScene
+
+from ..sketch.model import Sketch
+from .annotations import CurrentMark, DropMark, FaultNote, LoopMark, PotentialTag
+from .items import JunctionDot, LooseEnd, PartItem, WireItem, to_scene
+from .symbols import IEC
+from .theme import GRID
+
+__all__ = ["SketchScene"]
+
+
+class SketchScene(QGraphicsScene):
+    """Items for every part and wire of ``sketch``, plus connection marks and results."""
+
+    documentChanged = Signal()
+
+    def __init__(self, sketch: Sketch, style: str = IEC, parent=None) -> None:
+        super().__init__(parent)
+        self.sketch = sketch
+        self.style = style
+        self.part_items: dict[str, PartItem] = {}
+        self.wire_items: list[WireItem] = []
+        self._dots: list[JunctionDot] = []
+        self._loose: list[LooseEnd] = []
+        self._tags: list[PotentialTag] = []
+        self._loops: list[LoopMark] = []
+        self._note = FaultNote()
+        self._note.setVisible(False)
+        self.addItem(self._note)
+        self.layers = {"currents": True, "drops": True, "potentials": True, "loops": True}
+        self._batch = 0
+        self._dirty = False
+        self._flagged: set[str] = set()
+        self.solved = False
+        self.setItemIndexMethod(QGraphicsScene.ItemIndexMethod.BspTreeIndex)
+        sketch.subscribe(self._on_model_changed)
+        self.sync()
+
+    # -- following the model --------------------------------------------------
+    @contextmanager
+    def batch(self) -> Iterator[None]:
+        """Hold back syncing until the block ends (one sync per undo step)."""
+        self._batch += 1
+        try:
+            yield
+        finally:
+            self._batch -= 1
+            if self._batch == 0 and self._dirty:
+                self.sync()
+
+    def _on_model_changed(self) -> None:
+        if self._batch:
+            self._dirty = True
+        else:
+            self.sync()
+
+    def sync(self) -> None:
+        """Bring the items in line with the document and announce the change."""
+        self._dirty = False
+        self._sync_parts()
+        self._sync_wires()
+        self.documentChanged.emit()
+
+    def _new_part_item(self, part) -> PartItem:
+        item = PartItem(part, self.style)
+        if part.kind != "ground":
+            item.current_mark = CurrentMark(item)
+            item.drop_mark = DropMark(item)
+            item.current_mark.set_layer(self.layers["currents"])
+            item.drop_mark.set_layer(self.layers["drops"])
+        else:
+            item.current_mark = item.drop_mark = None
+        self.addItem(item)
+        return item
+
+    def _sync_parts(self) -> None:
+        items = self.part_items
+        parts = self.sketch.parts
+        current = {p.name: p for p in parts}
+        for name in [n for n in items if n not in current]:
+            item = items.pop(name)
+            self.removeItem(item)
+        for name, part in current.items():
+            item = items.get(name)
+            if item is None:
+                items[name] = self._new_part_item(part)
+            elif item.part is not part:
+                if item.part.kind != part.kind:
+                    self.removeItem(item)
+                    items[name] = self._new_part_item(part)
+                else:
+                    item.set_part(part)
+        self._orient_labels(parts)
+
+    def _orient_labels(self, parts) -> None:
+        """Put each part's text on the side facing away from the middle of the drawing."""
+        if not parts:
+            return
+        cx = sum(p.x for p in parts) / len(parts)
+        cy = sum(p.y for p in parts) / len(parts)
+        for p in parts:
+            item = self.part_items[p.name]
+            if item.horizontal:
+                item.set_side(-1 if item.pos().y() + item.centre.y() <= cy * 20.0 else 1)
+            else:
+                item.set_side(1 if item.pos().x() + item.centre.x() >= cx * 20.0 else -1)
+
+    def _sync_wires(self) -> None:
+        new = self.sketch.wires
+        old = self.wire_items
+        n_old, n_new, m = len(old), len(new), min(len(old), len(new))
+        p = 0
+        while p < m and old[p].wire is new[p]:
+            p += 1
+        s = 0
+        while s < m - p and old[n_old - 1 - s].wire is new[n_new - 1 - s]:
+            s += 1
+        mid_old = old[p:n_old - s]
+        mid_new = new[p:n_new - s]
+        k = min(len(mid_old), len(mid_new))
+        for j in range(k):
+            if mid_old[j].wire is not mid_new[j]:
+                mid_old[j].set_wire(mid_new[j])
+        for item in mid_old[k:]:
+            self.removeItem(item)
+        added = []
+        for w in mid_new[k:]:
+            item = WireItem(w, 0)
+            self.addItem(item)
+            added.append(item)
+        self.wire_items = old[:p] + mid_old[:k] + added + old[n_old - s:]
+        if len(mid_old) != len(mid_new):
+            for i in range(p, len(self.wire_items)):
+                self.wire_items[i].index = i
+        else:
+            for i in range(p, p + k):
+                self.wire_items[i].index = i
+
+    # -- selection --------------------------------------------------------------
+    def selected_parts(self) -> list[str]:
+        """Names of the selected parts, in document order."""
+        chosen = {i.part.name for i in self.selectedItems() if isinstance(i, PartItem)}
+        return [p.name for p in self.sketch.parts if p.name in chosen]
+
+    def selected_wires(self) -> list[int]:
+        """Indices of the selected wires."""
+        return sorted(i.index for i in self.selectedItems() if isinstance(i, WireItem))
+
+    def select(self, parts: Iterable[str] = (), wires: Iterable[int] = ()) -> None:
+        """Select exactly these parts and wires."""
+        self.blockSignals(True)
+        try:
+            self.clearSelection()
+            for n in parts:
+                if n in self.part_items:
+                    self.part_items[n].setSelected(True)
+            for i in wires:
+                if 0 <= i < len(self.wire_items):
+                    self.wire_items[i].setSelected(True)
+        finally:
+            self.blockSignals(False)
+        self.selectionChanged.emit()
+
+    # -- looks -------------------------------------------------------------------
+    def set_style(self, style: str) -> None:
+        """Use the IEC 60617 or IEEE 315 symbols."""
+        self.style = style
+        for item in self.part_items.values():
+            item.set_style(style)
+
+    def set_layer(self, layer: str, on: bool) -> None:
+        """Show or hide one layer of annotations."""
+        self.layers[layer] = on
+        if layer in ("currents", "drops"):
+            attr = "current_mark" if layer == "currents" else "drop_mark"
+            for item in self.part_items.values():
+                mark = getattr(item, attr)
+                if mark is not None:
+                    mark.set_layer(on)
+        elif layer == "potentials":
+            for t in self._tags:
+                t.setVisible(on and t.active)
+        elif layer == "loops":
+            for t in self._loops:
+                t.setVisible(on and t.active)
+
+    # -- connections and results -----------------------------------------------
+    def _pool(self, pool: list, cls, n: int) -> list:
+        while len(pool) < n:
+            item = cls()
+            self.addItem(item)
+            pool.append(item)
+        for item in pool[n:]:
+            item.setVisible(False)
+            item.active = False
+        return pool[:n]
+
+    def show_connections(self, junctions: list[tuple[int, int]], open_ends: list[tuple[int, int]]) -> None:
+        """Dots where three or more conductors join; rings at ends that connect to nothing."""
+        for item, p in zip(self._pool(self._dots, JunctionDot, len(junctions)), junctions):
+            item.setPos(to_scene(p))
+            item.setVisible(True)
+        for item, p in zip(self._pool(self._loose, LooseEnd, len(open_ends)), open_ends):
+            item.setPos(to_scene(p))
+            item.setVisible(True)
+
+    def show_solution(self, readings: dict[str, tuple[float, float]],
+                      potentials: list[tuple[tuple[int, int], float]],
+                      loops: list[tuple[tuple[float, float], str, float, bool]]) -> None:
+        """Lay a solution on the drawing.
+
+        ``readings`` maps part names to (current, drop); ``potentials`` are
+        (grid point, volts) tags; ``loops`` are (grid centre, name, current, clockwise).
+        """
+        self._clear_fault()
+        self.solved = True
+        for name, item in self.part_items.items():
+            if item.current_mark is None:
+                continue
+            r = readings.get(name)
+            item.current_mark.set_value(None if r is None else r[0])
+            item.drop_mark.set_value(None if r is None else r[1])
+        for item, (c, name, i, cw) in zip(self._pool(self._loops, LoopMark, len(loops)), loops):
+            item.setPos(c[0] * GRID, c[1] * GRID)
+            item.set_loop(name, i, cw)
+            item.active = True
+            item.setVisible(self.layers["loops"])
+        tags = self._pool(self._tags, PotentialTag, len(potentials))
+        for item, (p, v) in zip(tags, potentials):
+            item.setPos(to_scene(p))
+            item.set_value(v)
+            item.active = True
+            item.setVisible(self.layers["potentials"])
+        if len(tags) <= self.PLACE_TAGS_UP_TO:
+            for item in tags:
+                self._place_tag(item)
+
+    PLACE_TAGS_UP_TO = 200
+
+    def _place_tag(self, tag: PotentialTag) -> None:
+        """Hang a potential tag towards the corner where it covers the least text or symbol."""
+        best, best_cost = PotentialTag.CORNERS[0], None
+        for corner in PotentialTag.CORNERS:
+            rect = tag.rect_at(corner).translated(tag.pos())
+            cost = 0.0
+            for i in self.items(rect):
+                if i is tag or not i.isVisible():
+                    continue
+                for r in self._covers(i):
+                    x = r.intersected(rect)
+                    if not x.isEmpty():
+                        cost += x.width() * x.height()
+            if best_cost is None or cost < best_cost:
+                best, best_cost = corner, cost
+                if cost == 0:
+                    break
+        tag.set_corner(best)
+
+    @staticmethod
+    def _covers(item) -> list[QRectF]:
+        """Scene rectangles of what a tag should not hide in ``item``."""
+        if isinstance(item, PartItem):
+            rects = [item.mapRectToScene(item.outline.adjusted(4, 4, -4, -4))]
+            if item.lines:
+                rects.append(item.mapRectToScene(item.label_rect))
+            return rects
+        if isinstance(item, (CurrentMark, DropMark)):
+            return [item.mapRectToScene(item.text_rect)]
+        if isinstance(item, (PotentialTag, LoopMark)):
+            return [item.sceneBoundingRect()]
+        return []
+
+    def clear_results(self) -> None:
+        """Hide every result (they no longer match the drawing)."""
+        self.solved = False
+        for item in self.part_items.values():
+            if item.current_mark is not None:
+                item.current_mark.set_value(None)
+                item.drop_mark.set_value(None)
+        self._pool(self._tags, PotentialTag, 0)
+        self._pool(self._loops, LoopMark, 0)
+
+    def _clear_fault(self) -> None:
+        for name in self._flagged:
+            item = self.part_items.get(name)
+            if item is not None:
+                item.set_flagged(False)
+        self._flagged = set()
+        self._note.setVisible(False)
+
+    def show_fault(self, message: str, parts: Iterable[str]) -> None:
+        """Hide stale results, mark the parts named by an error and put its message beside them."""
+        self.clear_results()
+        self._clear_fault()
+        rect = QRectF()
+        for name in parts:
+            item = self.part_items.get(name)
+            if item is None:
+                continue
+            item.set_flagged(True)
+            self._flagged.add(name)
+            rect = rect.united(item.sceneBoundingRect())
+        if rect.isNull():
+            rect = self.itemsBoundingRect()
+            rect = QRectF(rect.left(), rect.top() - 40, 0, 0)
+        self._note.set_message(message)
+        self._note.setPos(rect.left(), rect.bottom() + 8)
+        self._note.setVisible(True)
+
+    def show_result(self, result) -> None:
+        """Show a ``solve_worker.Result``: connection marks, then the solution or the fault."""
+        self.show_connections(result.junctions, result.open_ends)
+        if result.error:
+            self.show_fault(result.error, result.error_parts)
+        elif result.readings:
+            self.show_solution({n: (r[0], r[1]) for n, r in result.readings.items()},
+                               result.potentials, result.loops)
+        else:
+            self._clear_fault()
+            self.clear_results()
+
+    @property
+    def fault_text(self) -> str:
+        """The message shown on the drawing, or '' when there is none."""
+        return self._note.text if self._note.isVisible() else ""
+
+    def content_rect(self) -> QRectF:
+        """The area covered by the drawing and its annotations."""
+        rect = QRectF()
+        for item in self.items():
+            if item.isVisible():
+                rect = rect.united(item.sceneBoundingRect())
+        return rect

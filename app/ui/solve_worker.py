@@ -1,0 +1,227 @@
+"""Live solving: sketch → netlist → solution → what the canvas and panels show.
+
+Small sketches are solved at once, inside the edit. Large ones are turned
+into a netlist on the GUI thread (the document is not shared across
+threads) and solved on a worker thread; at most one solve runs at a time,
+and a result that an edit has overtaken is dropped and the newest state
+solved instead.
+"""
+from __future__ import annotations
+
+import math
+from concurrent.futures import ThreadPoolExecutor
+from dataclasses import dataclass, field
+
+from PySide6.QtCore import QObject, Signal
+
+from solver import CircuitError, solve
+
+from ..sketch.model import Sketch
+from ..sketch.netlist import Netlist, to_circuit
+from ..units import format_value
+
+__all__ = ["Result", "LiveSolver", "solve_sketch", "HAZARD_VOLTS"]
+
+GridPoint = tuple[int, int]
+HAZARD_VOLTS = 60.0  # IEC 61010-1 §6.3.1: above 60 V DC counts as hazardous live
+
+
+@dataclass
+class Result:
+    """Everything the window shows about one state of the sketch."""
+
+    generation: int
+    junctions: list[GridPoint] = field(default_factory=list)
+    open_ends: list[GridPoint] = field(default_factory=list)
+    readings: dict[str, tuple[float, float, float]] = field(default_factory=dict)  # I, V, P
+    potentials: list[tuple[GridPoint, float]] = field(default_factory=list)
+    loops: list[tuple[tuple[float, float], str, float, bool]] = field(default_factory=list)
+    error: str = ""
+    error_parts: tuple[str, ...] = ()
+    notes: list[str] = field(default_factory=list)
+    cautions: list[str] = field(default_factory=list)
+    summary: str = ""
+
+    @property
+    def solved(self) -> bool:
+        return not self.error and bool(self.readings)
+
+
+def _grid(name: str) -> GridPoint:
+    x, y = name.split(",")
+    return int(x), int(y)
+
+
+def _loop_centre(loop, circuit) -> tuple[float, float] | None:
+    """A point inside the loop's window: its area centroid, else the mean of its corners."""
+    pos = circuit.positions
+    pts: list[tuple[float, float]] = []
+    for name, sign in loop.parts:
+        part = circuit.part(name)
+        a, b = (part.a, part.b) if sign > 0 else (part.b, part.a)
+        if a not in pos or b not in pos:
+            return None
+        for q in (pos[a], pos[b]):
+            if not pts or pts[-1] != q:
+                pts.append(q)
+    if len(pts) > 1 and pts[0] == pts[-1]:
+        pts.pop()
+    if len(pts) < 3:
+        return None
+    pts.append(pts[0])
+    area = cx = cy = 0.0
+    for (x0, y0), (x1, y1) in zip(pts, pts[1:]):
+        cross = x0 * y1 - x1 * y0
+        area += cross
+        cx += (x0 + x1) * cross
+        cy += (y0 + y1) * cross
+    if abs(area) > 1e-9:
+        c = (cx / (3 * area), cy / (3 * area))
+        if _inside(c, pts):
+            return c
+    n = len(pts) - 1
+    return sum(p[0] for p in pts[:n]) / n, sum(p[1] for p in pts[:n]) / n
+
+
+def _inside(p: tuple[float, float], poly: list[tuple[float, float]]) -> bool:
+    x, y = p
+    inside = False
+    for (x0, y0), (x1, y1) in zip(poly, poly[1:]):
+        if (y0 > y) != (y1 > y) and x < x0 + (y - y0) * (x1 - x0) / (y1 - y0):
+            inside = not inside
+    return inside
+
+
+def _from_netlist(generation: int, netlist: Netlist) -> Result:
+    res = Result(generation, junctions=list(netlist.junctions), open_ends=list(netlist.open_ends))
+    circuit = netlist.circuit
+    names = [p.name for p in circuit.parts if not p.name.startswith("~")]
+    if not names:
+        res.summary = "Nothing to solve yet: place a cell or a current source and the parts it drives."
+        return res
+    try:
+        sol = solve(circuit, ground=netlist.ground)
+    except CircuitError as e:
+        res.error = e.message
+        res.error_parts = tuple(p for p in e.parts if not p.startswith("~"))
+        res.summary = "Not solved: " + e.message
+        return res
+    for n in names:
+        i, v = sol.current(n), sol.voltage(n)
+        res.readings[n] = (i, v, sol.power(n))
+    refs = set(sol.references or ())
+    if sol.ground:
+        refs.add(sol.node_of(sol.ground))
+    junctions = set(netlist.junctions)
+    lo = hi = None
+    for node, points in sol.nodes.items():
+        v = sol.potential(points[0])
+        lo = v if lo is None else min(lo, v)
+        hi = v if hi is None else max(hi, v)
+        if node in refs:
+            continue
+        grid = [_grid(p) for p in points]
+        at = min(grid, key=lambda g: (g not in junctions, g[1], g[0]))
+        res.potentials.append((at, v))
+    for loop in sol.loops:
+        c = _loop_centre(loop, circuit)
+        if c is not None and math.isfinite(loop.current):
+            res.loops.append((c, loop.name, loop.current, loop.orientation != "anticlockwise"))
+    res.notes = [n.message for n in sol.notes]
+    if lo is not None and hi - lo > HAZARD_VOLTS:
+        res.cautions.append(
+            f"Caution: {format_value(hi - lo, 'V')} between points of this circuit is above 60 V DC, "
+            "hazardous live (IEC 61010-1); follow local codes and licensed practice.")
+    n_loops = len(sol.loops)
+    res.summary = (f"Solved by mesh currents: {n_loops} loop{'s' if n_loops != 1 else ''}, "
+                   f"{len(sol.nodes)} nodes.")
+    return res
+
+
+def solve_sketch(sketch: Sketch, generation: int = 0) -> Result:
+    """Solve ``sketch`` now and describe the result (never raises for a bad circuit)."""
+    try:
+        netlist = to_circuit(sketch)
+    except CircuitError as e:
+        return Result(generation, error=e.message, error_parts=tuple(e.parts), summary="Not solved: " + e.message)
+    return _guarded(generation, netlist)
+
+
+def _guarded(generation: int, netlist: Netlist) -> Result:
+    try:
+        return _from_netlist(generation, netlist)
+    except Exception as e:  # a fault of ours: say so in words, never a traceback
+        msg = f"the solver stopped unexpectedly ({type(e).__name__}); please report this sketch."
+        return Result(generation, junctions=list(netlist.junctions), open_ends=list(netlist.open_ends),
+                      error=msg, summary="Not solved: " + msg)
+
+
+class _Bridge(QObject):
+    done = Signal(object)
+
+
+class LiveSolver(QObject):
+    """Re-solves the sketch on request and emits ``resultReady(Result)`` for the newest state."""
+
+    resultReady = Signal(object)
+
+    def __init__(self, sketch: Sketch, threaded_from: int = 400, parent: QObject | None = None) -> None:
+        super().__init__(parent)
+        self.sketch = sketch
+        self.threaded_from = threaded_from
+        self.generation = 0
+        self.latest: Result | None = None
+        self._busy = False
+        self._pending = False
+        self._pool: ThreadPoolExecutor | None = None
+        self._bridge = _Bridge()
+        self._bridge.done.connect(self._on_done)
+
+    def request(self) -> None:
+        """The sketch changed: solve it (now, or as soon as the running solve ends)."""
+        self.generation += 1
+        if len(self.sketch.parts) < self.threaded_from:
+            self._publish(solve_sketch(self.sketch, self.generation))
+            return
+        if self._busy:
+            self._pending = True
+            return
+        self._start()
+
+    @property
+    def busy(self) -> bool:
+        return self._busy or self._pending
+
+    def _start(self) -> None:
+        gen = self.generation
+        try:
+            netlist = to_circuit(self.sketch)
+        except CircuitError as e:
+            self._publish(Result(gen, error=e.message, error_parts=tuple(e.parts),
+                                 summary="Not solved: " + e.message))
+            return
+        if self._pool is None:
+            self._pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="loopwright-solve")
+        self._busy = True
+        self._pool.submit(self._work, gen, netlist)
+
+    def _work(self, gen: int, netlist: Netlist) -> None:
+        self._bridge.done.emit(_guarded(gen, netlist))
+
+    def _on_done(self, result: Result) -> None:
+        self._busy = False
+        if self._pending or result.generation != self.generation:
+            self._pending = False
+            self._start()
+            return
+        self._publish(result)
+
+    def _publish(self, result: Result) -> None:
+        self.latest = result
+        self.resultReady.emit(result)
+
+    def shutdown(self) -> None:
+        """Stop the worker thread (results still running are dropped)."""
+        if self._pool is not None:
+            self._pool.shutdown(wait=True, cancel_futures=True)
+            self._pool = None

@@ -1,0 +1,98 @@
+"""Colours, pens and fonts of the canvas, in a light and a dark scheme.
+
+The scheme follows the system palette (a dark window background selects the
+dark scheme). Colour never carries meaning alone: every flag drawn with one
+of these colours also has a word or a shape (WCAG 2.1, 1.4.1).
+"""
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+from PySide6.QtGui import QColor, QFont, QGuiApplication, QPalette
+
+__all__ = ["Theme", "LIGHT", "DARK", "current_theme", "set_theme", "GRID", "label_font", "small_font"]
+
+GRID = 20.0  # scene units per grid step
+
+
+@dataclass(frozen=True)
+class Theme:
+    """One colour scheme for the canvas."""
+
+    name: str
+    paper: QColor       # canvas background
+    grid: QColor        # grid dots
+    ink: QColor         # parts and wires
+    label: QColor       # designators and values
+    select: QColor      # selection outline
+    current: QColor     # current arrows and values
+    drop: QColor        # voltage drops and +/- marks
+    potential: QColor   # node potential tags (text)
+    tag: QColor         # node potential tags (fill)
+    loop: QColor        # loop-current arrows
+    fault: QColor       # parts named by an error
+    note: QColor        # fill of the error note
+    loose: QColor       # unconnected ends
+    ghost: QColor       # part being placed, wire being drawn
+
+
+LIGHT = Theme(
+    name="light",
+    paper=QColor("#f7f6f1"), grid=QColor("#cfcbbd"), ink=QColor("#27343b"),
+    label=QColor("#4d5a60"), select=QColor("#2f78a8"), current=QColor("#98590b"),
+    drop=QColor("#2c6a4c"), potential=QColor("#3e4448"), tag=QColor("#e8e6dc"),
+    loop=QColor("#6a4a98"), fault=QColor("#b3261e"), note=QColor("#fbe9e6"),
+    loose=QColor("#b76e00"), ghost=QColor("#2f78a8"),
+)
+
+DARK = Theme(
+    name="dark",
+    paper=QColor("#1d2124"), grid=QColor("#3a4146"), ink=QColor("#d5dbde"),
+    label=QColor("#a9b4b9"), select=QColor("#7db4dc"), current=QColor("#e6b460"),
+    drop=QColor("#83c9a2"), potential=QColor("#d5dbde"), tag=QColor("#2c3236"),
+    loop=QColor("#b7a2e3"), fault=QColor("#ff7468"), note=QColor("#3d2422"),
+    loose=QColor("#f0a540"), ghost=QColor("#7db4dc"),
+)
+
+_current: Theme | None = None
+
+
+def _system_is_dark() -> bool:
+    app = QGuiApplication.instance()
+    if app is None:
+        return False
+    hints = QGuiApplication.styleHints()
+    scheme = getattr(hints, "colorScheme", None)
+    if scheme is not None:
+        from PySide6.QtCore import Qt
+        value = scheme()
+        if value == Qt.ColorScheme.Dark:
+            return True
+        if value == Qt.ColorScheme.Light:
+            return False
+    window = QGuiApplication.palette().color(QPalette.ColorRole.Window)
+    return window.lightness() < 128
+
+
+def current_theme() -> Theme:
+    """The scheme in use: set explicitly, or else the one matching the system palette."""
+    return _current if _current is not None else (DARK if _system_is_dark() else LIGHT)
+
+
+def set_theme(theme: Theme | None) -> None:
+    """Use ``theme`` from now on; ``None`` follows the system palette again."""
+    global _current
+    _current = theme
+
+
+def label_font(pixels: int = 11) -> QFont:
+    """The font of designators and values, sized in scene units so pictures match the screen."""
+    f = QFont()
+    f.setFamilies(["DejaVu Sans", "Segoe UI", "Helvetica Neue", "Sans Serif"])
+    f.setPixelSize(pixels)
+    return f
+
+
+def small_font() -> QFont:
+    """The font of annotations (currents, drops, potentials)."""
+    return label_font(10)
