@@ -7,28 +7,27 @@ checked for type and range.  The first problem found is reported in one
 ``SketchFileError`` whose message starts with the field's path, e.g.
 ``parts[3].values.resistance: must be a finite number > 0``.  Nothing in a
 file is ever executed.  Writing is deterministic (fixed key order, floats by
-``repr``) and atomic (temporary file, fsync, ``os.replace``).  The format is
+``repr``) and atomic (temporary file, fsync, ``os.replace``, previous
+version kept as ``name.lwsk.bak``).  The format is
 described field by field in the developer guide; ``assets/lwsk.schema.json``
 is its JSON Schema.
 """
 from __future__ import annotations
 
-import contextlib
 import json
 import math
 import os
 import re
-import stat
-import tempfile
 import unicodedata
 from collections.abc import Callable
 from typing import Any
 
+from .atomic import SaveError, backup_path, write_atomically
 from .kinds import KINDS
 from .model import ROTATIONS, PlacedPart, Sketch, Wire
 
 __all__ = [
-    "SketchFileError", "save_sketch", "load_sketch", "dumps_sketch", "loads_sketch",
+    "SketchFileError", "SaveError", "backup_path", "save_sketch", "load_sketch", "dumps_sketch", "loads_sketch",
     "FORMAT_TAG", "VERSION", "MAX_BYTES", "MAX_DEPTH", "GRID_LIMIT", "NAME_PATTERN", "LABEL_MAX",
 ]
 
@@ -342,41 +341,14 @@ def dumps_sketch(sketch: Sketch) -> str:
     return f'{head}{_block("parts", doc["parts"])},\n{_block("wires", doc["wires"])}\n}}\n'
 
 
-def save_sketch(sketch: Sketch, path: str | os.PathLike[str]) -> None:
+def save_sketch(sketch: Sketch, path: str | os.PathLike[str], *, backup: bool = True) -> None:
     """Write ``sketch`` to ``path`` atomically: a reader sees the old file or the whole new one.
 
     The text goes to a temporary file in the same folder, is flushed and
-    fsynced, then renamed over ``path``.  An existing file keeps its
-    permissions.  Raises SketchFileError for an unsavable sketch and OSError
-    if the folder cannot be written.
+    fsynced, then renamed over ``path`` (see ``atomic.write_atomically``).
+    With ``backup`` the previous file is kept as ``backup_path(path)``
+    (``name.lwsk.bak``).  An existing file keeps its permissions.  Raises
+    SketchFileError for an unsavable sketch and SaveError (an OSError, in
+    plain words) if the file cannot be written; the old file is then untouched.
     """
-    data = dumps_sketch(sketch).encode("utf-8")
-    target = os.path.abspath(os.fspath(path))
-    folder = os.path.dirname(target)
-    try:
-        mode = stat.S_IMODE(os.stat(target).st_mode)
-    except FileNotFoundError:
-        mode = 0o644
-    fd, tmp = tempfile.mkstemp(prefix=f".{os.path.basename(target)}.", suffix=".tmp", dir=folder)
-    try:
-        with os.fdopen(fd, "wb") as f:
-            f.write(data)
-            f.flush()
-            os.fsync(f.fileno())
-        os.chmod(tmp, mode)
-        os.replace(tmp, target)
-    except BaseException:
-        with contextlib.suppress(OSError):
-            os.unlink(tmp)
-        raise
-    _sync_folder(folder)
-
-
-def _sync_folder(folder: str) -> None:
-    """Make the rename durable where the system allows syncing a folder (POSIX)."""
-    with contextlib.suppress(OSError, AttributeError):
-        fd = os.open(folder, os.O_RDONLY)
-        try:
-            os.fsync(fd)
-        finally:
-            os.close(fd)
+    write_atomically(path, dumps_sketch(sketch).encode("utf-8"), backup=backup)
