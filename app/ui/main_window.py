@@ -42,6 +42,9 @@ PALETTE = [  # (tool, label, key)
 ]
 
 
+_FALLBACK_KEYS = {QKeySequence.StandardKey.Quit: "Ctrl+Q"}  # where a platform defines none
+
+
 def _demo_dir() -> Path:
     return Path(__file__).resolve().parents[2] / "demo_circuits"
 
@@ -90,6 +93,7 @@ class MainWindow(QMainWindow):
         self._build_menus()
         self.view.modeChanged.connect(self._mode_changed)
         self.view.editRequested.connect(self.edit_value_inline)
+        self.view.pressed.connect(self._dismiss_inline)
         self.view.pointerMoved.connect(lambda x, y: self.where.setText(f"x {x}  y {y}"))
         self.readings.selectionModel().selectionChanged.connect(self._table_selection_changed)
         self.part_panel.refused.connect(lambda m: self.hint("Not accepted: " + m, 6000))
@@ -105,11 +109,13 @@ class MainWindow(QMainWindow):
     # -- building ---------------------------------------------------------------------
     def _action(self, text: str, slot, shortcut=None, checkable: bool = False, tip: str = "") -> QAction:
         a = QAction(text, self)
-        if shortcut is not None:
-            if isinstance(shortcut, list):
-                a.setShortcuts(shortcut)
-            else:
-                a.setShortcut(shortcut)
+        if isinstance(shortcut, QKeySequence.StandardKey):
+            keys = QKeySequence.keyBindings(shortcut)
+            a.setShortcuts(keys if keys else [QKeySequence(_FALLBACK_KEYS.get(shortcut, ""))])
+        elif isinstance(shortcut, list):
+            a.setShortcuts(shortcut)
+        elif shortcut is not None:
+            a.setShortcut(shortcut)
         a.setCheckable(checkable)
         if tip:
             a.setStatusTip(tip)
@@ -260,11 +266,11 @@ class MainWindow(QMainWindow):
         self.solver.resultReady.connect(self._show_result)
         self.scene.documentChanged.connect(self._document_changed)
         self.scene.selectionChanged.connect(self._scene_selection_changed)
-        self.stack.cleanChanged.connect(lambda clean: self.setWindowModified(not clean))
+        self.stack.cleanChanged.connect(self._clean_changed)
         self.stack.canUndoChanged.connect(self.act_undo.setEnabled)
         self.stack.canRedoChanged.connect(self.act_redo.setEnabled)
-        self.stack.undoTextChanged.connect(lambda t: self.act_undo.setText(f"&Undo {t}".strip()))
-        self.stack.redoTextChanged.connect(lambda t: self.act_redo.setText(f"&Redo {t}".strip()))
+        self.stack.undoTextChanged.connect(self._undo_text)
+        self.stack.redoTextChanged.connect(self._redo_text)
         self.act_undo.setEnabled(False)
         self.act_redo.setEnabled(False)
         self.view.set_editor(self.editor)
@@ -273,6 +279,15 @@ class MainWindow(QMainWindow):
         self._update_title()
         self._document_changed()
         QTimer.singleShot(0, self.view.zoom_fit)
+
+    def _clean_changed(self, clean: bool) -> None:
+        self.setWindowModified(not clean)
+
+    def _undo_text(self, text: str) -> None:
+        self.act_undo.setText(f"&Undo {text}".strip())
+
+    def _redo_text(self, text: str) -> None:
+        self.act_redo.setText(f"&Redo {text}".strip())
 
     def _update_title(self) -> None:
         name = self.path.name if self.path else "Untitled"
@@ -396,6 +411,10 @@ class MainWindow(QMainWindow):
         self._inline = InlineValueEditor(self.view.viewport(), self.editor, name, at)
         self._inline.refused.connect(lambda m: self.hint("Not accepted: " + m, 6000))
         self._inline.closed.connect(self._inline_closed)
+
+    def _dismiss_inline(self) -> None:
+        if self._inline is not None:
+            self._inline.dismiss()
 
     def _inline_closed(self) -> None:
         self._inline = None

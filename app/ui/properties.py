@@ -166,7 +166,6 @@ class InlineValueEditor(QFrame):
         self.message = _error_label()
         self.message.setMaximumWidth(260)
         lay.addWidget(self.message)
-        self.line.returnPressed.connect(self.commit)
         self.line.installEventFilter(self)
         self.move(at)
         self.adjustSize()
@@ -175,11 +174,13 @@ class InlineValueEditor(QFrame):
 
     def eventFilter(self, obj, event) -> bool:
         from PySide6.QtCore import QEvent
-        if obj is self.line and event.type() == QEvent.Type.KeyPress and event.key() == Qt.Key.Key_Escape:
-            self.dismiss()
-            return True
-        if obj is self.line and event.type() == QEvent.Type.FocusOut and not self.message.isVisible():
-            self.dismiss()
+        if obj is self.line and event.type() == QEvent.Type.KeyPress:
+            if event.key() == Qt.Key.Key_Escape:
+                self.dismiss()
+                return True
+            if event.key() in (Qt.Key.Key_Return, Qt.Key.Key_Enter):
+                self.commit()  # consumed here, so the canvas does not take Enter as "edit again"
+                return True
         return super().eventFilter(obj, event)
 
     def commit(self) -> None:
@@ -198,6 +199,8 @@ class InlineValueEditor(QFrame):
         self.dismiss()
 
     def dismiss(self) -> None:
+        if not self.isVisible():
+            return
         self.hide()
         self.closed.emit()
         self.deleteLater()

@@ -35,6 +35,7 @@ class CanvasView(QGraphicsView):
     modeChanged = Signal(str)
     editRequested = Signal(str)  # a part's designator: open its value for editing
     pointerMoved = Signal(int, int)
+    pressed = Signal()
 
     def __init__(self, parent=None) -> None:
         super().__init__(parent)
@@ -59,6 +60,7 @@ class CanvasView(QGraphicsView):
         self._press: GridPoint | None = None
         self._dragging = False
         self._press_pos = QPoint()
+        self._last_kind = ""
 
     # -- wiring up -----------------------------------------------------------------
     def set_editor(self, editor: Editor) -> None:
@@ -99,7 +101,10 @@ class CanvasView(QGraphicsView):
         self._wire_start = None
         self.mode = mode
         if mode != SELECT:
-            self.rotation = self.rotation if mode != WIRE else 0
+            if mode != self._last_kind:
+                self.rotation, self.mirror = 0, False
+            if mode != WIRE:
+                self._last_kind = mode
             self._cursor = GridCursor()
             scene.addItem(self._cursor)
             self._cursor.setPos(to_scene(self.cursor_point))
@@ -225,6 +230,7 @@ class CanvasView(QGraphicsView):
     def mousePressEvent(self, event: QMouseEvent) -> None:
         if self.editor is None:
             return super().mousePressEvent(event)
+        self.pressed.emit()
         self.setFocus()
         point = self.grid_at(event.position().toPoint())
         if self.mode != SELECT:
