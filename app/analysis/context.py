@@ -51,6 +51,7 @@ class Analysis:
     value: dict[str, float] = field(default_factory=dict)
     part_of: dict[str, str] = field(default_factory=dict)
     loop_current: list[str] = field(default_factory=list)
+    _cache: dict = field(default_factory=dict, repr=False)
 
     @property
     def unit(self) -> dict[str, str]:
@@ -78,12 +79,15 @@ class Analysis:
 
     # -- the loop space ---------------------------------------------------------
     def _column(self, part: str) -> np.ndarray:
-        col = np.zeros(len(self.solution.loops))
-        for loop in self.solution.loops:
-            for p, s in loop.parts:
-                if p == part:
-                    col[loop.index] += s
-        return col
+        """Loop-branch incidence of ``part``: +1 for each loop running through it first to second terminal."""
+        cols = self._cache.get("columns")
+        if cols is None:
+            cols = {}
+            for loop in self.solution.loops:
+                for p, s in loop.parts:
+                    cols.setdefault(p, np.zeros(len(self.solution.loops)))[loop.index] += s
+            self._cache["columns"] = cols
+        return cols.get(part, np.zeros(len(self.solution.loops))).copy()
 
     def _sources(self) -> list[str]:
         return [n for n, k in self.kind.items() if k == "source current"]
@@ -107,6 +111,11 @@ class Analysis:
 
     def _elimination(self) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         """Pivot loops, free loops, M and c0 with j[pivot] = c0 − M·j[free] from the source rows."""
+        if "elimination" not in self._cache:
+            self._cache["elimination"] = self._eliminate()
+        return self._cache["elimination"]
+
+    def _eliminate(self) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         n_loops = len(self.solution.loops)
         sources = self._sources()
         rows = np.array([self._column(s) for s in sources]).reshape(len(sources), n_loops)
