@@ -10,7 +10,7 @@ def _shield_none() -> None:
 
     Qt methods that return a null pointer as ``None`` (``parentItem()``,
     ``focusWidget()``, ``itemAt()``…) give back ``None`` without a new
-    reference, so each call lowers ``None``'s count; once it reaches zero the
+    reference (``True``/``False`` were seen to suffer the same), so each call lowers the count; once it reaches zero the
     interpreter aborts. From Python 3.12 on ``None`` is immortal and this is
     not needed; before that we give ``None`` a large reserve of references
     (a singleton is never freed, so the reserve costs nothing).
@@ -18,7 +18,8 @@ def _shield_none() -> None:
     if _sys.version_info >= (3, 12) or _sys.implementation.name != "cpython":
         return
     import ctypes
-    ctypes.c_ssize_t.from_address(id(None)).value += 1 << 40
+    for singleton in (None, True, False):  # bools were seen to leak the same way
+        ctypes.c_ssize_t.from_address(id(singleton)).value += 1 << 40
 
 
 _shield_none()

@@ -14,7 +14,7 @@ from PySide6.QtGui import QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF
 from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
 
 from ..units import format_value
-from .items import Z_MARK, Z_NOTE, PartItem, _paint_warning_sign
+from .items import Z_MARK, Z_NOTE, PartItem, _paint_warning_sign, too_small
 from .theme import current_theme, small_font
 
 __all__ = ["CurrentMark", "DropMark", "PotentialTag", "LoopMark", "FaultNote", "LAYERS"]
@@ -74,9 +74,12 @@ class _PartMark(QGraphicsItem):
             self.value = None
             self.setVisible(False)
             return
-        if value != self.value:
-            self.value = value
-            self.text = self._format(value)
+        text = self._format(value)
+        turned = (value < 0) != (self.value is not None and self.value < 0) or (value == 0) != (self.value == 0)
+        was_shown = self.value is not None
+        self.value = value
+        if text != self.text or turned or not was_shown:
+            self.text = text
             self.relayout()
         self.setVisible(self._layer_on)
 
@@ -119,7 +122,7 @@ class CurrentMark(_PartMark):
         return format_value(abs(value), "A")
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
-        if self.value is None:
+        if self.value is None or too_small(painter):
             return
         th = current_theme()
         o = self.owner
@@ -161,7 +164,7 @@ class DropMark(_PartMark):
         return format_value(abs(value), "V")
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
-        if self.value is None:
+        if self.value is None or too_small(painter):
             return
         th = current_theme()
         o = self.owner
@@ -200,8 +203,10 @@ class PotentialTag(QGraphicsItem):
         self._corner = (-1, -1)
 
     def set_value(self, value: float) -> None:
-        self.text = format_value(value, "V")
-        self.set_corner(self._corner)
+        text = format_value(value, "V")
+        if text != self.text:
+            self.text = text
+            self.set_corner(self._corner)
 
     def rect_at(self, corner: tuple[int, int]) -> QRectF:
         """The tag's box when hung towards ``corner`` ((-1, -1) = up and left)."""
@@ -227,6 +232,8 @@ class PotentialTag(QGraphicsItem):
         return path
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        if too_small(painter):
+            return
         th = current_theme()
         painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
         painter.setPen(QPen(th.potential, 0.9))
@@ -254,9 +261,12 @@ class LoopMark(QGraphicsItem):
         self._text_rect = QRectF()
 
     def set_loop(self, name: str, current: float, clockwise: bool) -> None:
+        text = f"{name} {format_value(current, 'A')}"
+        if text == self.text and clockwise == self.clockwise:
+            return
         self.prepareGeometryChange()
         self.clockwise = clockwise
-        self.text = f"{name} {format_value(current, 'A')}"
+        self.text = text
         fm = _fm()
         w = fm.horizontalAdvance(self.text) + 4
         self._text_rect = QRectF(-w / 2, self.R + 4, w, fm.height())
@@ -267,6 +277,8 @@ class LoopMark(QGraphicsItem):
         return QRectF(-r, -r, 2 * r, 2 * r).united(self._text_rect)
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        if too_small(painter):
+            return
         th = current_theme()
         painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
         pen = QPen(th.loop, 1.5)

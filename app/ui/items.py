@@ -17,11 +17,19 @@ from ..units import format_value
 from .symbols import IEC, body_centre, paint_symbol, symbol_outline
 from .theme import GRID, current_theme, label_font
 
-__all__ = ["PartItem", "WireItem", "JunctionDot", "LooseEnd", "RubberWire", "GridCursor",
+__all__ = ["too_small", "PartItem", "WireItem", "JunctionDot", "LooseEnd", "RubberWire", "GridCursor",
            "value_text", "to_scene", "Z_WIRE", "Z_PART", "Z_MARK", "Z_NOTE"]
 
 Z_WIRE, Z_PART, Z_DOT, Z_MARK, Z_NOTE, Z_TOOL = 1.0, 2.0, 3.0, 4.0, 6.0, 8.0
 INK_WIDTH = 1.7
+
+
+TEXT_LOD = 0.45  # below this scale text is under ~5 px tall: not drawn
+
+
+def too_small(painter: QPainter) -> bool:
+    """True when the view is zoomed out so far that text and marks would be unreadable specks."""
+    return QStyleOptionGraphicsItem.levelOfDetailFromTransform(painter.worldTransform()) < TEXT_LOD
 
 
 def to_scene(p: tuple[int, int]) -> QPointF:
@@ -68,6 +76,7 @@ class PartItem(QGraphicsItem):
             self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemIsSelectable, True)
         self.setZValue(Z_TOOL if ghost else Z_PART)
         self.setAcceptHoverEvents(False)
+
         self._layout()
 
     # -- geometry ---------------------------------------------------------------
@@ -189,7 +198,7 @@ class PartItem(QGraphicsItem):
         painter.setBrush(Qt.BrushStyle.NoBrush)
         paint_symbol(painter, self.part.kind, self.style, self.part.flag("closed"))
         painter.restore()
-        if self.lines:
+        if self.lines and not too_small(painter):
             painter.setFont(label_font())
             fm = self._fm
             r = self.label_rect

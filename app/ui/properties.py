@@ -35,6 +35,7 @@ class PartPanel(QWidget):
         self.editor: Editor | None = None
         self.name: str | None = None
         self._fields: dict[str, QLineEdit] = {}
+        self._kind = ""
         outer = QVBoxLayout(self)
         outer.setContentsMargins(8, 8, 8, 8)
         self.heading = QLabel("Select one part to see and change its values.")
@@ -70,6 +71,11 @@ class PartPanel(QWidget):
 
     def show_part(self, name: str | None) -> None:
         """Show the part called ``name`` (None: nothing or several selected)."""
+        sketch = self.editor.sketch if self.editor else None
+        if name is not None and name == self.name and sketch is not None and sketch.has_part(name) \
+                and self._fields and sketch.part(name).kind == self._kind:
+            self._refresh(sketch.part(name))  # same part: update the texts, keep the widgets
+            return
         while self.form.rowCount():
             self.form.removeRow(0)
         self._fields = {}
@@ -83,6 +89,7 @@ class PartPanel(QWidget):
             return
         self.name = name
         part = sketch.part(name)
+        self._kind = part.kind
         spec = kind_spec(part.kind)
         self.heading.setText(f"<b>{spec.title}</b>")
         self.form_host.setVisible(True)
@@ -105,6 +112,15 @@ class PartPanel(QWidget):
             box.setChecked(part.flag(flag))
             box.toggled.connect(lambda on, k=flag: self.editor and self.name and self.editor.set_flag(self.name, k, on))
             self.form.addRow("", box)
+
+    def _refresh(self, part) -> None:
+        for f in kind_spec(part.kind).fields:
+            edit = self._fields.get(f.key)
+            if edit is not None and not edit.hasFocus():
+                edit.setText(editable_text(part.value(f.key), f.unit))
+        des = self._fields.get("designator")
+        if des is not None and not des.hasFocus():
+            des.setText(part.name)
 
     def field(self, key: str) -> QLineEdit:
         """The line edit of value ``key`` (or ``"designator"``)."""

@@ -239,16 +239,20 @@ class SketchScene(QGraphicsScene):
             item.active = True
             item.setVisible(self.layers["loops"])
         tags = self._pool(self._tags, PotentialTag, len(potentials))
+        moved = []
         for item, (p, v) in zip(tags, potentials):
-            item.setPos(to_scene(p))
+            pos = to_scene(p)
+            if pos != item.pos() or not item.active:
+                item.setPos(pos)
+                moved.append(item)
             item.set_value(v)
             item.active = True
             item.setVisible(self.layers["potentials"])
         if len(tags) <= self.PLACE_TAGS_UP_TO:
-            for item in tags:
+            for item in moved:  # tags that stay put keep their corner
                 self._place_tag(item)
 
-    PLACE_TAGS_UP_TO = 200
+    PLACE_TAGS_UP_TO = 400
 
     def _place_tag(self, tag: PotentialTag) -> None:
         """Hang a potential tag towards the corner where it covers the least text or symbol."""

@@ -55,6 +55,7 @@ DARK = Theme(
 )
 
 _current: Theme | None = None
+_auto: Theme | None = None  # the system's scheme, worked out once per palette
 
 
 def _system_is_dark() -> bool:
@@ -76,13 +77,19 @@ def _system_is_dark() -> bool:
 
 def current_theme() -> Theme:
     """The scheme in use: set explicitly, or else the one matching the system palette."""
-    return _current if _current is not None else (DARK if _system_is_dark() else LIGHT)
+    global _auto
+    if _current is not None:
+        return _current
+    if _auto is None:
+        _auto = DARK if _system_is_dark() else LIGHT
+    return _auto
 
 
 def set_theme(theme: Theme | None) -> None:
-    """Use ``theme`` from now on; ``None`` follows the system palette again."""
-    global _current
+    """Use ``theme`` from now on; ``None`` follows the system palette again (looked at afresh)."""
+    global _current, _auto
     _current = theme
+    _auto = None
 
 
 def label_font(pixels: int = 11) -> QFont:

@@ -46,6 +46,7 @@ class CanvasView(QGraphicsView):
         self.setDragMode(QGraphicsView.DragMode.RubberBandDrag)
         self.setRubberBandSelectionMode(Qt.ItemSelectionMode.IntersectsItemShape)
         self.setMouseTracking(True)
+        self.setCacheMode(QGraphicsView.CacheModeFlag.CacheBackground)
         self.setFocusPolicy(Qt.FocusPolicy.StrongFocus)
         self.editor: Editor | None = None
         self.mode = SELECT

@@ -1,0 +1,111 @@
+"""Time from an edit to the annotations being updated, offscreen, on grids of resistors.
+
+Run: QT_QPA_PLATFORM=offscreen python tests/bench/bench_live.py
+Prints median and 95th percentile for moving a part and for changing a
+value, on sketches of about 20, 200 and 2,000 parts. Targets (issue 3):
+p95 under 16 ms at 200 parts, under 100 ms at 2,000.
+"""
+from __future__ import annotations
+
+import math
+import os
+import statistics
+import sys
+import time
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import app.ui  # noqa: E402,F401  (before Qt: see app/ui/__init__.py)
+from PySide6.QtCore import QSettings  # noqa: E402
+from PySide6.QtWidgets import QApplication  # noqa: E402
+
+from app.sketch.model import PlacedPart, Sketch  # noqa: E402
+from app.ui.main_window import MainWindow  # noqa: E402
+
+
+def grid_sketch(n_parts: int) -> Sketch:
+    """A rows × cols lattice of 1 kΩ resistors joined at their terminals, fed by a 12 V cell."""
+    cols = max(2, round(math.sqrt(n_parts / 2)) + 1)
+    rows = max(2, round((n_parts + cols) / (2 * cols - 1)))
+    s = Sketch()
+    k = 0
+    for r in range(rows):
+        for c in range(cols - 1):
+            k += 1
+            s.add_part(PlacedPart("resistor", f"R{k}", 4 * c, 4 * r, 0, False, {"resistance": 1000.0 + k}))
+    for r in range(rows - 1):
+        for c in range(cols):
+            if r == 0 and c == 0:
+                s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 12.0, "internal_resistance": 0.5}))
+                continue
+            k += 1
+            s.add_part(PlacedPart("resistor", f"R{k}", 4 * c, 4 * r, 90, False, {"resistance": 1000.0 + k}))
+    s.add_part(PlacedPart("ground", "GND1", 0, 4))
+    return s
+
+
+def wait_for_result(app: QApplication, win: MainWindow) -> None:
+    solver = win.solver
+    while solver.latest is None or solver.latest.generation != solver.generation:
+        app.processEvents()
+        time.sleep(0.0002)
+    app.processEvents()  # let the canvas repaint what changed
+
+
+def measure(app: QApplication, win: MainWindow, edit, reps: int) -> list[float]:
+    out = []
+    for k in range(reps):
+        t0 = time.perf_counter()
+        edit(k)
+        wait_for_result(app, win)
+        out.append((time.perf_counter() - t0) * 1000.0)
+    return out
+
+
+def p95(xs: list[float]) -> float:
+    xs = sorted(xs)
+    return xs[min(len(xs) - 1, math.ceil(0.95 * len(xs)) - 1)]
+
+
+def main() -> int:
+    app = QApplication.instance() or QApplication(sys.argv[:1])
+    settings = QSettings(os.path.join(os.environ.get("TMPDIR", "/tmp"), "loopwright-bench.ini"),
+                         QSettings.Format.IniFormat)
+    print(f"{'parts':>6} {'view':<12} {'edit':<14} {'median ms':>10} {'p95 ms':>8}  target")
+    for (n, reps), zoom in [(c, z) for c in ((20, 60), (200, 40), (2000, 20)) for z in ("100 %", "whole sketch")]:
+        win = MainWindow(settings)
+        win.ask_to_save = lambda: "discard"
+        win.resize(1200, 800)
+        win.show()
+        sketch = grid_sketch(n)
+        win.set_document(sketch, None)
+        wait_for_result(app, win)
+        app.processEvents()
+        if zoom == "100 %":
+            win.view.resetTransform()
+            win.view.centerOn(0, 0)
+        else:
+            win.view.zoom_fit()
+        app.processEvents()
+        target = {200: "p95 < 16 ms", 2000: "p95 < 100 ms"}.get(n, "")
+        names = [p.name for p in sketch.parts if p.kind == "resistor"]
+        victim = names[len(names) // 2]
+
+        def move(k: int) -> None:
+            win.scene.select([victim])
+            win.editor.nudge(0, 1 if k % 2 == 0 else -1)
+
+        def revalue(k: int) -> None:
+            win.editor.set_values(victim, {"resistance": 1000.0 + (k % 7) * 100.0})
+
+        for label, fn in (("move a part", move), ("change value", revalue)):
+            times = measure(app, win, fn, reps)
+            print(f"{len(sketch.parts):>6} {zoom:<12} {label:<14} {statistics.median(times):>10.1f} {p95(times):>8.1f}  {target}")
+        win.close()
+        win.deleteLater()
+        app.processEvents()
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
