@@ -15,8 +15,9 @@ HERE = Path(__file__).resolve().parent
 
 def _part(s: Sketch, kind: str, name: str, x: int, y: int, rot: int = 0, label: str = "", **values) -> None:
     flags = {k: v for k, v in values.items() if isinstance(v, bool)}
-    vals = {k: float(v) for k, v in values.items() if not isinstance(v, bool)}
-    s.add_part(PlacedPart(kind, name, x, y, rot, False, vals, flags, label))
+    choices = {k: v for k, v in values.items() if isinstance(v, str)}
+    vals = {k: float(v) for k, v in values.items() if not isinstance(v, (bool, str))}
+    s.add_part(PlacedPart(kind, name, x, y, rot, False, vals, flags, label, choices))
 
 
 def _wire(s: Sketch, x1: int, y1: int, x2: int, y2: int) -> None:
@@ -81,11 +82,34 @@ def greenhouse_heater_strip(rungs: int = 20) -> Sketch:
     return s
 
 
+def market_stall_lamps() -> Sketch:
+    """A night-market stall's lamp string off a 12.8 V pack: fuse, meter, a thin cable run, two lamps.
+
+    The 0.75 mm² run is too thin for a 3 % drop, and the lamps run a little
+    above their 12 V rating on the pack's higher voltage: both show as cautions.
+    """
+    s = Sketch()
+    _part(s, "cell", "B1", 0, 0, 90, "stall pack", emf=12.8, internal_resistance=0.02, capacity=20.0,
+          max_current=10.0, preset="lifepo4_12v")
+    _part(s, "fuse", "F1", 0, 0, 0, "pack fuse", rating=3.0)
+    _part(s, "ammeter", "PA1", 4, 0, 0, "clamp meter", burden=0.0)
+    _part(s, "cable", "W1", 8, 0, 0, "8 m to the awning, out and back", length=8.0, cross_section=0.75,
+          drop_limit=3.0, material="copper", both_conductors=True)
+    _part(s, "lamp", "H1", 12, 0, 90, "awning lamp", rated_voltage=12.0, rated_power=10.0)
+    _wire(s, 12, 0, 20, 0)
+    _part(s, "lamp", "H2", 16, 0, 90, "counter lamp", rated_voltage=12.0, rated_power=10.0)
+    _part(s, "voltmeter", "PV1", 20, 0, 90, "pocket meter", input_resistance=10e6)
+    _wire(s, 0, 4, 20, 4)
+    _part(s, "ground", "GND1", 0, 4)
+    return s
+
+
 DEMOS = {
     "bench_supply_fixture.lwsk": bench_supply_fixture,
     "sensor_current_loop.lwsk": sensor_current_loop,
     "rover_parallel_packs.lwsk": rover_parallel_packs,
     "greenhouse_heater_strip.lwsk": greenhouse_heater_strip,
+    "market_stall_lamps.lwsk": market_stall_lamps,
 }
 
 

@@ -130,8 +130,8 @@ def test_schema_kinds_match_the_program():
     assert set(rules) == set(KINDS)
     for kind, spec in KINDS.items():
         values = rules[kind]["values"]["properties"]
-        assert list(values) == [f.key for f in spec.fields]
-        for f in spec.fields:
+        assert list(values) == [f.key for f in spec.value_fields]
+        for f in spec.value_fields:
             want = "#/$defs/nonNegative" if f.zero_ok else "#/$defs/positive"
             assert values[f.key]["$ref"] == want
         assert list(rules[kind]["flags"]["properties"]) == list(spec.flags)

@@ -32,7 +32,7 @@ __all__ = [
 ]
 
 FORMAT_TAG = "loopwright-sketch"
-VERSION = 1
+VERSION = 2
 MAX_BYTES = 20 * 1024 * 1024
 MAX_DEPTH = 16                 # the format itself nests 4 deep
 MAX_NUMBER_DIGITS = 40
@@ -41,16 +41,29 @@ NAME_PATTERN = r"[A-Za-z0-9][A-Za-z0-9_.+\-]{0,31}"
 LABEL_MAX = 200
 
 _TOP_FIELDS = ("format", "version", "parts", "wires")
-_PART_FIELDS = ("kind", "name", "x", "y", "rotation", "mirror", "values", "flags", "label")
+_PART_FIELDS = ("kind", "name", "x", "y", "rotation", "mirror", "values", "flags", "choices", "label")
 _PART_REQUIRED = ("kind", "name", "x", "y")
 _WIRE_FIELDS = ("x1", "y1", "x2", "y2")
 _NAME = re.compile(NAME_PATTERN)
 _IDENTIFIER = re.compile(r"[A-Za-z_][A-Za-z0-9_]*")
 _TOKENS = re.compile(r'"(?:[^"\\]|\\.)*"|[\[\]{}]')
 
+
+
+def _v1_to_v2(doc: dict[str, Any]) -> dict[str, Any]:
+    """Version 2 adds bench parts, ratings, per-kind flag defaults and a part's ``choices``.
+
+    Everything a version-1 file could hold means the same in version 2: its
+    only flag (a switch's ``closed``) still defaults to true, and the new
+    values (a resistor's power rating, a cell's capacity...) default to 0,
+    "not given", so an old sketch raises no rating cautions it never asked for.
+    """
+    return dict(doc, version=2)
+
+
 # Upgrades from an older version: _MIGRATIONS[n] turns a version-n document
 # (parsed JSON, not yet checked) into a version n+1 one.  Version 1 is the first.
-_MIGRATIONS: dict[int, Callable[[dict[str, Any]], dict[str, Any]]] = {}
+_MIGRATIONS: dict[int, Callable[[dict[str, Any]], dict[str, Any]]] = {1: _v1_to_v2}
 
 
 class SketchFileError(ValueError):
@@ -218,14 +231,24 @@ def _part(doc: Any, path: str, seen: dict[str, str]) -> PlacedPart:
         raise _Bad(f"{path}.rotation", "must be 0, 90, 180 or 270")
     mirror = _bool(doc.get("mirror", False), f"{path}.mirror")
 
-    fields = {f.key: f for f in spec.fields}
+    fields = {f.key: f for f in spec.value_fields}
     values = _object(doc.get("values", {}), f"{path}.values", tuple(fields), ())
     checked_values = {k: _number(v, _key(f"{path}.values", k), fields[k].zero_ok)
                       for k, v in values.items()}
     flags = _object(doc.get("flags", {}), f"{path}.flags", spec.flags, ())
     checked_flags = {k: _bool(v, _key(f"{path}.flags", k)) for k, v in flags.items()}
+    options = {c.key: c.keys for c in spec.choices}
+    choices = _object(doc.get("choices", {}), f"{path}.choices", tuple(options), ())
+    checked_choices = {k: _option(v, _key(f"{path}.choices", k), options[k]) for k, v in choices.items()}
     label = _text(doc.get("label", ""), f"{path}.label", LABEL_MAX)
-    return PlacedPart(kind, name, x, y, rotation, mirror, checked_values, checked_flags, label)
+    return PlacedPart(kind, name, x, y, rotation, mirror, checked_values, checked_flags, label,
+                      checked_choices)
+
+
+def _option(value: Any, path: str, keys: tuple[str, ...]) -> str:
+    if not isinstance(value, str) or value not in keys:
+        raise _Bad(path, "must be one of " + ", ".join(keys))
+    return value
 
 
 def _wire(doc: Any, path: str) -> Wire:
@@ -300,13 +323,14 @@ def load_sketch(path: str | os.PathLike[str]) -> Sketch:
 
 
 def _part_doc(p: PlacedPart) -> dict[str, Any]:
-    order = [f.key for f in KINDS[p.kind].fields] if p.kind in KINDS else []
+    order = [f.key for f in KINDS[p.kind].value_fields] if p.kind in KINDS else []
     keys = [k for k in order if k in p.values] + sorted(k for k in p.values if k not in order)
     return {
         "kind": p.kind, "name": p.name, "x": p.x, "y": p.y,
         "rotation": p.rotation, "mirror": p.mirror,
         "values": {k: _as_float(p.values[k]) for k in keys},
         "flags": {k: p.flags[k] for k in sorted(p.flags)},
+        "choices": {k: p.choices[k] for k in sorted(p.choices)},
         "label": p.label,
     }
 

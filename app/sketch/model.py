@@ -30,7 +30,13 @@ def transform(local: GridPoint, rotation: int, mirror: bool) -> GridPoint:
 
 @dataclass(frozen=True)
 class PlacedPart:
-    """A part on the grid. ``values`` holds the kind's fields in SI base units."""
+    """A part on the grid.
+
+    ``values`` holds the kind's number fields (SI base units, see
+    ``ValueField``), ``flags`` its on/off properties and ``choices`` its
+    picked-from-a-list properties (a cable's material, a cell's preset), each
+    falling back to the kind's default when left out.
+    """
 
     kind: str
     name: str
@@ -41,6 +47,7 @@ class PlacedPart:
     values: dict[str, float] = field(default_factory=dict)
     flags: dict[str, bool] = field(default_factory=dict)
     label: str = ""
+    choices: dict[str, str] = field(default_factory=dict)
 
     def terminals(self) -> list[GridPoint]:
         """Grid points of the terminals, in the kind's terminal order."""
@@ -55,14 +62,23 @@ class PlacedPart:
         """The value ``key``, falling back to the kind's default."""
         if key in self.values:
             return self.values[key]
-        for f in kind_spec(self.kind).fields:
+        for f in kind_spec(self.kind).value_fields:
             if f.key == key:
                 return f.default
         raise KeyError(key)
 
     def flag(self, key: str) -> bool:
-        """A boolean property (e.g. a switch's ``closed``); default True."""
-        return self.flags.get(key, True)
+        """A boolean property (e.g. a switch's ``closed``), falling back to the kind's default."""
+        if key in self.flags:
+            return self.flags[key]
+        spec = KINDS.get(self.kind)
+        return spec.flag_default(key) if spec else True
+
+    def choice(self, key: str) -> str:
+        """The picked option ``key`` (e.g. a cable's ``material``), falling back to the kind's default."""
+        if key in self.choices:
+            return self.choices[key]
+        return kind_spec(self.kind).choice_field(key).default
 
 
 @dataclass(frozen=True)
@@ -206,7 +222,8 @@ class Sketch:
         """A hashable value equal for equal documents (order included)."""
         return (
             tuple((p.kind, p.name, p.x, p.y, p.rotation, p.mirror,
-                   tuple(sorted(p.values.items())), tuple(sorted(p.flags.items())), p.label)
+                   tuple(sorted(p.values.items())), tuple(sorted(p.flags.items())), p.label,
+                   tuple(sorted(p.choices.items())))
                   for p in self._parts.values()),
             tuple(self._wires),
         )

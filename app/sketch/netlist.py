@@ -11,10 +11,12 @@ from __future__ import annotations
 
 import bisect
 from collections import defaultdict
+from collections.abc import Callable
 from dataclasses import dataclass, field
 
 from solver import Circuit, CircuitError
 
+from .bench_parts import cable_resistance, lamp_hot_resistance
 from .kinds import KINDS
 from .model import PlacedPart, Sketch, Wire
 
@@ -121,17 +123,58 @@ def _pieces(wires: list[Wire], stops: set[GridPoint]) -> list[_Piece]:
 
 
 def _add_part(c: Circuit, part: PlacedPart, ends: list[str]) -> None:
-    if part.kind == "resistor":
-        c.resistor(part.name, ends[0], ends[1], part.value("resistance"))
-    elif part.kind == "cell":
-        c.cell(part.name, plus=ends[0], minus=ends[1], emf=part.value("emf"),
+    """Add ``part`` as solver primitives under its own name, so its current and drop read by name.
+
+    Bench parts reduce to what the solver already has: a meter or fuse of no
+    resistance is a closed switch (a conductor), an ideal voltmeter or a blown
+    fuse an open switch, everything else a resistor.
+    """
+    a, b, name, kind = ends[0], ends[1], part.name, part.kind
+    if kind == "resistor":
+        c.resistor(name, a, b, part.value("resistance"))
+    elif kind == "cell":
+        c.cell(name, plus=a, minus=b, emf=part.value("emf"),
                internal_resistance=part.value("internal_resistance"))
-    elif part.kind == "current_source":
-        c.current_source(part.name, ends[0], ends[1], part.value("current"))
-    elif part.kind == "switch":
-        c.switch(part.name, ends[0], ends[1], closed=part.flag("closed"))
+    elif kind == "current_source":
+        c.current_source(name, a, b, part.value("current"))
+    elif kind == "switch":
+        c.switch(name, a, b, closed=part.flag("closed"))
+    elif kind == "ammeter":
+        _resistor_or_conductor(c, name, a, b, part.value("burden"))
+    elif kind == "voltmeter":
+        if part.flag("ideal"):
+            c.switch(name, a, b, closed=False)
+        else:
+            c.resistor(name, a, b, part.value("input_resistance"))
+    elif kind == "fuse":
+        if part.flag("blown"):
+            c.switch(name, a, b, closed=False)
+        else:
+            _resistor_or_conductor(c, name, a, b, part.value("resistance"))
+    elif kind == "lamp":
+        c.resistor(name, a, b, _physical(part, lambda: lamp_hot_resistance(
+            part.value("rated_voltage"), part.value("rated_power"))))
+    elif kind == "cable":
+        c.resistor(name, a, b, _physical(part, lambda: cable_resistance(
+            part.value("length"), part.value("cross_section"), part.choice("material"),
+            part.flag("both_conductors"))))
     else:
         raise CircuitError(f"{part.name}: Loopwright cannot yet solve a {part.kind}.", [part.name])
+
+
+def _resistor_or_conductor(c: Circuit, name: str, a: str, b: str, resistance: float) -> None:
+    if resistance == 0:
+        c.switch(name, a, b, closed=True)
+    else:
+        c.resistor(name, a, b, resistance)
+
+
+def _physical(part: PlacedPart, resistance: Callable[[], float]) -> float:
+    """A part's resistance from its ratings, with a bad rating reported as a circuit error."""
+    try:
+        return resistance()
+    except ValueError as e:
+        raise CircuitError(f"{part.name}: {e}", [part.name]) from None
 
 
 class _Groups:
