@@ -1,0 +1,87 @@
+"""The window around the canvas: Readings selection both ways, title, layers, pictures."""
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+pytest.importorskip("pytestqt")
+
+from PySide6.QtCore import QItemSelectionModel, QPointF, QSettings, Qt  # noqa: E402
+from PySide6.QtGui import QImage  # noqa: E402
+
+from app.sketch.fileio import save_sketch  # noqa: E402
+from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
+from app.ui.main_window import MainWindow  # noqa: E402
+from app.ui.shot import render  # noqa: E402
+
+
+def one_loop() -> Sketch:
+    s = Sketch()
+    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 12.0}))
+    s.add_part(PlacedPart("resistor", "R1", 0, 0, 0, False, {"resistance": 100.0}))
+    s.add_part(PlacedPart("resistor", "R2", 4, 0, 90, False, {"resistance": 200.0}))
+    s.add_wire(Wire(0, 4, 4, 4))
+    s.add_part(PlacedPart("ground", "GND1", 0, 4))
+    return s
+
+
+@pytest.fixture
+def win(qtbot, tmp_path):
+    w = MainWindow(QSettings(str(tmp_path / "settings.ini"), QSettings.Format.IniFormat))
+    w.ask_to_save = lambda: "discard"
+    w.tell = lambda title, message: pytest.fail(message)
+    qtbot.addWidget(w)
+    w.show()
+    qtbot.waitExposed(w)
+    path = tmp_path / "loop.lwsk"
+    save_sketch(one_loop(), path)
+    assert w.open_path(path)
+    w.view.resetTransform()
+    w.view.centerOn(QPointF(40, 40))
+    return w
+
+
+def test_selecting_on_the_canvas_selects_the_row_and_the_reverse(qtbot, win):
+    vp = win.view.viewport()
+    qtbot.mouseClick(vp, Qt.MouseButton.LeftButton, pos=win.view.mapFromScene(QPointF(40, 0)))
+    rows = {i.row() for i in win.readings.selectionModel().selectedRows()}
+    assert rows == {win.readings_model.row_of("R1")}
+    index = win.readings_model.index(win.readings_model.row_of("R2"), 0)
+    win.readings.selectionModel().select(index, QItemSelectionModel.SelectionFlag.ClearAndSelect
+                                         | QItemSelectionModel.SelectionFlag.Rows)
+    assert win.scene.selected_parts() == ["R2"]
+    assert win.part_panel.name == "R2"
+
+
+def test_title_shows_the_file_and_an_unsaved_mark(qtbot, win):
+    assert win.windowTitle().startswith("loop.lwsk")
+    assert not win.isWindowModified()
+    win.scene.select(["R1"])
+    qtbot.keyClick(win.view, Qt.Key.Key_Down)
+    assert win.isWindowModified()
+    qtbot.keyClick(win.view, Qt.Key.Key_Z, Qt.KeyboardModifier.ControlModifier)
+    assert not win.isWindowModified()
+
+
+def test_each_annotation_layer_can_be_hidden(qtbot, win):
+    mark = win.scene.part_items["R1"].current_mark
+    assert mark.isVisible()
+    win.layer_actions["currents"].trigger()
+    assert not mark.isVisible()
+    assert win.scene.part_items["R1"].drop_mark.isVisible()
+    win.layer_actions["currents"].trigger()
+    assert mark.isVisible()
+
+
+def test_shot_writes_png_and_svg(qtbot, tmp_path):
+    path = tmp_path / "loop.lwsk"
+    save_sketch(one_loop(), path)
+    render(path, tmp_path / "loop.png")
+    image = QImage(str(tmp_path / "loop.png"))
+    assert not image.isNull() and image.width() > 100
+    render(path, tmp_path / "loop.svg")
+    text = Path(tmp_path / "loop.svg").read_text(encoding="utf-8")
+    assert "<svg" in text and "40.0 mA" in text  # 12 V across 300 Ω (Ohm's law)
+    with pytest.raises(ValueError, match="png or .svg"):
+        render(path, tmp_path / "loop.bmp")
