@@ -329,6 +329,9 @@ def trace_loop(a: Analysis, items: Sequence[str], direction: str = "as given") -
             if target == here:
                 continue
             runs = [b for b in a.branches.branches if here in b.nodes and target in b.nodes]
+            if runs:  # the most direct run: fewest parts between the two nodes
+                gap = {b.index: abs(b.nodes.index(here) - b.nodes.index(target)) for b in runs}
+                runs = [b for b in runs if gap[b.index] == min(gap.values())]
             if not runs:
                 raise LoopError(f"No part or branch joins node {lab(here)} directly to point {x}; "
                                 "click the points in order round the loop.")
