@@ -14,7 +14,7 @@ from scipy.sparse import coo_matrix, csgraph
 
 from .circuit import CELL, CURRENT_SOURCE, RESISTOR, Circuit
 
-__all__ = ["Topology", "contract", "Forest", "bfs_forest", "least_resistance_forest", "component_roots",
+__all__ = ["Topology", "contract", "Forest", "bfs_forest", "spanning_forest", "least_resistance_forest", "component_roots",
            "accumulate_to_root", "subtree_sums", "multigraph"]
 
 
@@ -135,14 +135,16 @@ class Forest:
         return np.flatnonzero(self.edge < 0)
 
 
-def bfs_forest(n: int, u: np.ndarray, v: np.ndarray, roots: np.ndarray) -> Forest:
+def bfs_forest(n: int, u: np.ndarray, v: np.ndarray, roots: np.ndarray,
+               prefer: np.ndarray | None = None) -> Forest:
     """Breadth-first spanning forest of the multigraph with edges ``u[k]–v[k]``.
 
     Each connected component is rooted at the vertex of ``roots`` that lies in
     it (``roots`` must hold exactly one vertex per component, e.g. from
     :func:`component_roots`). A virtual super-root joined to every root lets
     one C-level ``csgraph.breadth_first_order`` call span all components.
-    Self-loops and parallel edges are allowed; they never become tree edges.
+    Self-loops are allowed and never become tree edges; of parallel edges the
+    one with the smallest ``prefer`` value (e.g. resistance) is taken.
     """
     m = len(u)
     s = n  # super-root
@@ -160,7 +162,12 @@ def bfs_forest(n: int, u: np.ndarray, v: np.ndarray, roots: np.ndarray) -> Fores
     if m:
         lo, hi = np.minimum(u, v), np.maximum(u, v)
         key = lo * (n + 1) + hi
-        skey, first = np.unique(key, return_index=True)
+        if prefer is not None:
+            by = np.lexsort((prefer, key))
+            skey, f0 = np.unique(key[by], return_index=True)
+            first = by[f0]
+        else:
+            skey, first = np.unique(key, return_index=True)
         x = np.flatnonzero(~is_root)
         px = parent[x]
         want = np.minimum(x, px) * (n + 1) + np.maximum(x, px)
@@ -221,24 +228,20 @@ def subtree_sums(forest: Forest, value: np.ndarray) -> np.ndarray:
     return total
 
 
-def least_resistance_forest(topo: Topology, roots: np.ndarray) -> Forest:
-    """A spanning forest of the branches that prefers low resistance (Kruskal via csgraph).
+def spanning_forest(n: int, u: np.ndarray, v: np.ndarray, weight: np.ndarray, roots: np.ndarray) -> Forest:
+    """A minimum-weight spanning forest (Kruskal via csgraph), rooted at ``roots``.
 
-    Used when the loop equations of a shallow tree are ill-conditioned: with
-    the high-resistance branches as chords, each appears in one loop only and
-    the loop matrix stays diagonally dominant. Current sources are taken last.
-    ``Forest.edge`` indexes the branches.
+    ``weight`` must be positive. ``Forest.edge`` indexes the given edges; of
+    parallel edges the lightest is the candidate. ``roots`` holds one vertex
+    per connected component.
     """
-    n, nb = topo.n_nodes, topo.n_branches
-    u, v = topo.br_u, topo.br_v
-    weight = np.empty(nb)
-    weight[np.argsort(topo.br_r, kind="stable")] = np.arange(1, nb + 1)
-    weight[topo.br_cs] = nb + 1.0
     ok = u != v
     lo, hi = np.minimum(u, v)[ok], np.maximum(u, v)[ok]
     idx = np.flatnonzero(ok)
     order = np.lexsort((weight[idx], hi, lo))   # lightest of each parallel bundle first
     lo, hi, idx = lo[order], hi[order], idx[order]
+    if len(idx) == 0:
+        return bfs_forest(n, u[:0], v[:0], roots)
     first = np.r_[True, (lo[1:] != lo[:-1]) | (hi[1:] != hi[:-1])]
     lo, hi, idx = lo[first], hi[first], idx[first]
     mst = csgraph.minimum_spanning_tree(coo_matrix((weight[idx], (lo, hi)), shape=(n, n))).tocoo()
@@ -249,6 +252,21 @@ def least_resistance_forest(topo: Topology, roots: np.ndarray) -> Forest:
     f = bfs_forest(n, u[tree], v[tree], roots)
     f.edge = np.where(f.edge >= 0, tree[np.maximum(f.edge, 0)], -1)
     return f
+
+
+def least_resistance_forest(topo: Topology, roots: np.ndarray) -> Forest:
+    """A spanning forest of the branches that prefers low resistance.
+
+    Used when the loop equations of a shallow tree are ill-conditioned: with
+    the high-resistance branches as chords, each appears in one loop only and
+    the loop matrix stays diagonally dominant. Current sources are taken last.
+    Weights are ranks, so zero resistances need no special case.
+    """
+    nb = topo.n_branches
+    weight = np.empty(nb)
+    weight[np.argsort(topo.br_r, kind="stable")] = np.arange(1, nb + 1)
+    weight[topo.br_cs] = nb + 1.0
+    return spanning_forest(topo.n_nodes, topo.br_u, topo.br_v, weight, roots)
 
 
 def multigraph(topo: Topology) -> nx.MultiGraph:

@@ -26,10 +26,11 @@ from dataclasses import dataclass
 
 import numpy as np
 from scipy.sparse import coo_matrix, csgraph, csr_matrix
+from scipy.sparse import vstack as sp_vstack
 
-from .graph import Forest, Topology
+from .graph import Forest, Topology, bfs_forest, component_roots, spanning_forest
 
-__all__ = ["LoopSet", "window_loops", "fundamental_loops", "segments_cross"]
+__all__ = ["LoopSet", "window_loops", "fundamental_loops", "orient_clockwise", "segments_cross", "crossing_mask"]
 
 
 @dataclass
@@ -81,15 +82,16 @@ def _orient(ax, ay, bx, by, cx, cy):
     return np.sign((bx - ax) * (cy - ay) - (by - ay) * (cx - ax))
 
 
-def _grid_segments_cross(p: np.ndarray, q: np.ndarray) -> bool | None:
-    """Crossing test for horizontal/vertical segments with integer ends, or None if not such.
+def _grid_crossings(p: np.ndarray, q: np.ndarray) -> np.ndarray | None:
+    """Crossing mask for horizontal/vertical segments with integer ends, or None if not such.
 
     Two such segments can only meet at integer points, so it is enough to
-    list the integer points inside each segment: a drawing has a crossing,
-    overlap or T-touch exactly when some segment's inner point is also a
-    point of another segment. (End points are unique per point, checked by
-    the caller.)
+    list the integer points inside each segment: a segment is in a crossing,
+    overlap or T-touch exactly when one of its inner points is also a point
+    of another segment, or another segment's inner point is its end. (End
+    points are unique per point, checked by the caller.)
     """
+    n = len(p)
     if not (np.all(p == np.round(p)) and np.all(q == np.round(q))):
         return None
     d = q - p
@@ -98,25 +100,31 @@ def _grid_segments_cross(p: np.ndarray, q: np.ndarray) -> bool | None:
     length = np.abs(d).sum(axis=1).astype(np.int64)
     inner = np.maximum(length - 1, 0)
     total = int(inner.sum())
-    if total > 50 * len(p) + 1_000_000:
+    if total > 50 * n + 1_000_000:
         return None
-    pi = p.astype(np.int64)
-    lo = pi.min(axis=0)
-    span = int((np.maximum(p, q).astype(np.int64) - lo).max()) + 1
+    pi, qi = p.astype(np.int64), q.astype(np.int64)
+    lo = np.minimum(pi.min(axis=0), qi.min(axis=0))
+    span = int((np.maximum(pi, qi) - lo).max()) + 1
     key_of = lambda xy: (xy[:, 0] - lo[0]) * span + (xy[:, 1] - lo[1])  # noqa: E731
-    seg = np.repeat(np.arange(len(p)), inner)
+    seg = np.repeat(np.arange(n), inner)
     k = 1 + np.arange(total) - np.repeat(np.cumsum(inner) - inner, inner)
     step = np.sign(d).astype(np.int64)
-    pts = pi[seg] + step[seg] * k[:, None]
-    inner_keys = key_of(pts)
-    if len(np.unique(inner_keys)) != total:
-        return True
-    ends = np.unique(np.concatenate([key_of(pi), key_of(q.astype(np.int64))]))
-    return bool(np.isin(inner_keys, ends).any())
+    inner_keys = key_of(pi[seg] + step[seg] * k[:, None])
+    mask = np.zeros(n, bool)
+    if total == 0:
+        return mask
+    uniq, inv, cnt = np.unique(inner_keys, return_inverse=True, return_counts=True)
+    mask[seg[cnt[inv] > 1]] = True
+    end_keys = np.concatenate([key_of(pi), key_of(qi)])
+    hit = np.isin(inner_keys, end_keys)
+    mask[seg[hit]] = True
+    end_hit = np.isin(end_keys, inner_keys)
+    mask[np.concatenate([np.arange(n), np.arange(n)])[end_hit]] = True
+    return mask
 
 
-def segments_cross(p: np.ndarray, q: np.ndarray, ia: np.ndarray, ib: np.ndarray) -> bool:
-    """True if any two segments meet anywhere but at a shared end point.
+def crossing_mask(p: np.ndarray, q: np.ndarray, ia: np.ndarray, ib: np.ndarray) -> np.ndarray:
+    """Which segments meet another anywhere but at a shared end point.
 
     ``p``/``q`` are (n, 2) end coordinates and ``ia``/``ib`` the point ids of
     the ends. Segments that overlap along a line, or where an end lies on
@@ -125,9 +133,10 @@ def segments_cross(p: np.ndarray, q: np.ndarray, ia: np.ndarray, ib: np.ndarray)
     drawings made of short segments; the exact test uses orientation signs.
     """
     n = len(p)
+    mask = np.zeros(n, bool)
     if n < 2:
-        return False
-    fast = _grid_segments_cross(p, q)
+        return mask
+    fast = _grid_crossings(p, q)
     if fast is not None:
         return fast
     lo = np.minimum(p, q)
@@ -140,7 +149,8 @@ def segments_cross(p: np.ndarray, q: np.ndarray, ia: np.ndarray, ib: np.ndarray)
     count = span[:, 0] * span[:, 1]
     total = int(count.sum())
     if total > 40_000_000:
-        return True  # unreasonable geometry: let the caller use fundamental loops
+        mask[:] = True  # unreasonable geometry: let the caller use fundamental loops
+        return mask
     seg = np.repeat(np.arange(n), count)
     k = np.arange(total) - np.repeat(np.cumsum(count) - count, count)
     cx = c0[seg, 0] + k % span[seg, 0]
@@ -159,14 +169,13 @@ def segments_cross(p: np.ndarray, q: np.ndarray, ia: np.ndarray, ib: np.ndarray)
     j = i + 1 + (np.arange(int(npairs.sum())) - np.repeat(np.cumsum(npairs) - npairs, npairs))
     s, t = seg[i], seg[j]
     if len(s) == 0:
-        return False
+        return mask
     pair = np.unique(np.minimum(s, t) * n + np.maximum(s, t))
     s, t = pair // n, pair % n
-    # bounding boxes must touch
     touch = np.all(lo[s] <= hi[t], axis=1) & np.all(lo[t] <= hi[s], axis=1)
     s, t = s[touch], t[touch]
     if len(s) == 0:
-        return False
+        return mask
     P1, P2, Q1, Q2 = p[s], q[s], p[t], q[t]
     o1 = _orient(*P1.T, *P2.T, *Q1.T)
     o2 = _orient(*P1.T, *P2.T, *Q2.T)
@@ -183,19 +192,31 @@ def segments_cross(p: np.ndarray, q: np.ndarray, ia: np.ndarray, ib: np.ndarray)
     shared = (ia[s] == ia[t]) | (ia[s] == ib[t]) | (ib[s] == ia[t]) | (ib[s] == ib[t])
     bad_shared = shared & collinear & overlap
     bad_apart = ~shared & np.where(collinear, overlap | ((tq1 == 0) | (tq1 == dd) | (tq2 == 0) | (tq2 == dd)), meet)
-    return bool(np.any(bad_shared | bad_apart))
+    bad = bad_shared | bad_apart
+    mask[s[bad]] = True
+    mask[t[bad]] = True
+    return mask
+
+
+def segments_cross(p: np.ndarray, q: np.ndarray, ia: np.ndarray, ib: np.ndarray) -> bool:
+    """True if any two segments meet anywhere but at a shared end point (see :func:`crossing_mask`)."""
+    return bool(crossing_mask(p, q, ia, ib).any())
 
 
 def window_loops(topo: Topology) -> LoopSet | None:
     """The windows of the drawing as clockwise loops, or None when they cannot be used.
 
-    None when a point lacks a position, two points share a position, two
-    segments cross, or the faces do not form a complete set of loops (e.g.
-    wires tied between distant points).
+    Wires and closed switches drawn across other parts (and ties between
+    points with no drawn path, such as several ground symbols) are left out
+    of the drawing; each one that closes a loop adds the loop through the
+    drawing's tree, oriented clockwise where it can be. None when a point
+    lacks a position, two points share a position, two branches cross, or
+    the loops found do not form a complete set.
     """
     pos = topo.circuit.positions
     if topo.n_branches == 0:
         return None
+    nb = topo.n_branches
     geo = np.concatenate([topo.branch_parts, topo.conductor_parts])
     pa, pb = topo.part_a[geo], topo.part_b[geo]
     used = np.unique(np.concatenate([pa, pb]))
@@ -206,13 +227,52 @@ def window_loops(topo: Topology) -> LoopSet | None:
     xy[used] = [pos[names[i]] for i in used]
     if len(np.unique(xy[used], axis=0)) != len(used):
         return None
-    if segments_cross(xy[pa], xy[pb], pa, pb):
+    crossing = crossing_mask(xy[pa], xy[pb], pa, pb)
+    lifted = np.zeros(len(geo), bool)
+    lifted[nb:] = crossing[nb:]
+    if lifted.any():
+        keep = ~lifted
+        if crossing_mask(xy[pa[keep]], xy[pb[keep]], pa[keep], pb[keep]).any():
+            return None
+    elif crossing.any():
         return None
+    # A ring of conductors would make faces that differ only by wires; keep a
+    # spanning forest of the drawn conductors and lift the ring closers too
+    # (their ends are joined anyway, so they close no loop of their own).
+    dc = np.flatnonzero(~lifted[nb:])
+    ca, cb = pa[nb + dc], pb[nb + dc]
+    _, croots = component_roots(topo.n_points, ca, cb, np.zeros(0, np.int64))
+    cforest = bfs_forest(topo.n_points, ca, cb, croots)
+    ring = np.ones(len(dc), bool)
+    ring[cforest.edge[cforest.edge >= 0]] = False
+    lifted[nb + dc[ring]] = True
+    drawn = np.flatnonzero(~lifted)
+    faces = _faces(topo, xy, pa[drawn], pb[drawn], np.minimum(drawn, nb))
+    if faces is None:
+        return None
+    parts = [_isolate_shorted(faces, topo)]
+    if lifted.any():
+        ties = _tie_loops(topo, topo.conductor_parts[lifted[nb:]], geo[nb:][~lifted[nb:]], xy)
+        parts.append(ties)
+    loops = _concat(parts, nb)
+    if loops.n_loops != cycle_space_dimension(topo):
+        return None
+    return loops
 
-    m = len(geo)
-    # half-edge 2e runs a->b, 2e+1 runs b->a
+
+def _faces(topo: Topology, xy: np.ndarray, pa: np.ndarray, pb: np.ndarray, branch_of: np.ndarray) -> LoopSet | None:
+    """Bounded faces of a crossing-free straight-line drawing as clockwise loops.
+
+    ``pa``/``pb`` are the point ids of the segments; ``branch_of[e]`` is the
+    branch of segment ``e``, or ``nb`` for a conductor (no term). Faces are
+    traced with half-edges sorted by angle around each point; Euler's formula
+    (bounded faces = E − V + C) confirms the drawing is planar as given.
+    """
+    nb = topo.n_branches
+    m = len(pa)
+    used = np.unique(np.concatenate([pa, pb]))
     origin = np.empty(2 * m, np.int64)
-    origin[0::2], origin[1::2] = pa, pb
+    origin[0::2], origin[1::2] = pa, pb          # half-edge 2e runs a->b, 2e+1 runs b->a
     dest = np.empty(2 * m, np.int64)
     dest[0::2], dest[1::2] = pb, pa
     d = xy[dest] - xy[origin]
@@ -224,8 +284,7 @@ def window_loops(topo: Topology) -> LoopSet | None:
     first = np.searchsorted(o_sorted, o_sorted, side="left")
     deg = np.searchsorted(o_sorted, o_sorted, side="right") - first
     # next(h) = the half-edge just before twin(h) in angular order around dest(h)
-    twin = np.arange(2 * m) ^ 1
-    rt = rank[twin]
+    rt = rank[np.arange(2 * m) ^ 1]
     start_t, deg_t = first[rt], deg[rt]
     nxt = order[start_t + (rt - start_t - 1) % deg_t]
     ncomp, face = csgraph.connected_components(
@@ -235,50 +294,178 @@ def window_loops(topo: Topology) -> LoopSet | None:
     scale = np.bincount(face, weights=np.abs(cross), minlength=ncomp) + 1e-300
     bounded = area > 1e-12 * scale        # positive with y down = clockwise on screen
 
-    # Euler's formula per geometric component: bounded faces = E - V + C.
-    gadj = coo_matrix((np.ones(m), (pa, pb)), shape=(topo.n_points, topo.n_points))
-    gk, glabel = csgraph.connected_components(gadj, directed=False)
-    isolated = topo.n_points - len(used)
-    if int(bounded.sum()) != m - len(used) + (gk - isolated):
+    # Euler's formula over the drawn segments' own components.
+    remap = np.full(topo.n_points, -1, np.int64)
+    remap[used] = np.arange(len(used))
+    gadj = coo_matrix((np.ones(m), (remap[pa], remap[pb])), shape=(len(used), len(used)))
+    gk, _ = csgraph.connected_components(gadj, directed=False)
+    if int(bounded.sum()) != m - len(used) + gk:
         return None
 
-    # Branch incidence of each bounded face; conductors carry no term.
-    nb = topo.n_branches
-    he = np.arange(2 * m)
-    e = he >> 1
-    is_branch = e < nb
-    keep = bounded[face] & is_branch
-    face_id = np.cumsum(bounded) - 1
-    rows = face_id[face[keep]]
-    cols = e[keep]
-    vals = np.where(he[keep] & 1, -1.0, 1.0)
-    B = csr_matrix(coo_matrix((vals, (rows, cols)), shape=(int(bounded.sum()), nb)))
+    e = np.arange(2 * m) >> 1
+    br = branch_of[e]
+    is_branch = br < nb
+    fb = np.flatnonzero(bounded)
+    face_row = np.full(ncomp, -1, np.int64)
+    face_row[fb] = np.arange(len(fb))
+    sel = bounded[face] & is_branch
+    rows = face_row[face[sel]]
+    sg = np.where(np.arange(2 * m)[sel] & 1, -1, 1)
+    step = _cycle_positions(nxt, face, ncomp)[sel]
+    return _from_entries("windows", rows, br[sel], sg, step, len(fb), nb, clockwise=1)
+
+
+def _isolate_shorted(ls: LoopSet, topo: Topology) -> LoopSet:
+    """Keep a shorted branch (both ends on one node) in its own window only.
+
+    A branch shorted by wires bounds a window made of itself and those wires;
+    the window on its other side would carry it too, so its current would be a
+    difference of two loop currents, exact only to rounding. Dropping it from
+    the other window (which is that window merged with the shorted one, the
+    same loop electrically) leaves its current exactly its own loop current.
+    """
+    shorted = topo.br_u == topo.br_v
+    sel = shorted[ls.branch]
+    if not sel.any():
+        return ls
+    nnz = np.diff(ls.B.indptr)
+    pure_row = np.full(topo.n_branches, -1, np.int64)
+    lone = sel & (nnz[ls.loop] == 1)
+    pure_row[ls.branch[lone]] = ls.loop[lone]
+    drop = sel & (pure_row[ls.branch] >= 0) & (pure_row[ls.branch] != ls.loop)
+    if not drop.any():
+        return ls
+    keep = ~drop
+    loop, branch, sign = ls.loop[keep], ls.branch[keep], ls.sign[keep]
+    B = csr_matrix(coo_matrix((sign.astype(float), (loop, branch)), shape=ls.B.shape))
+    return LoopSet(ls.method, B, loop, branch, sign, ls.clockwise)
+
+
+def _from_entries(method: str, loop: np.ndarray, branch: np.ndarray, sign: np.ndarray,
+                  step: np.ndarray, n_loops: int, nb: int, clockwise: int) -> LoopSet:
+    """A LoopSet from (loop, branch, sign, step) entries; drops cancelling and empty loops.
+
+    A branch walked both ways in one loop (a dangling branch inside a window)
+    cancels; a loop with no branch left (only wires) is dropped.
+    """
+    B = coo_matrix((sign.astype(float), (loop, branch)), shape=(n_loops, nb)).tocsr()
+    B.sum_duplicates()
     B.eliminate_zeros()
     nonempty = np.diff(B.indptr) > 0
-    if int(nonempty.sum()) != cycle_space_dimension(topo):
-        return None
-    B = B[nonempty]
-
-    # Traversal order: follow next() from the lowest half-edge of each face.
-    loop_of_face = np.full(ncomp, -1, np.int64)
-    loop_of_face[np.flatnonzero(bounded)[nonempty]] = np.arange(int(nonempty.sum()))
-    step = _cycle_positions(nxt, face, ncomp)
-    sel = (loop_of_face[face] >= 0) & is_branch
-    # drop branches that cancel (a dangling branch walked both ways)
-    lf = loop_of_face[face[sel]]
-    br = e[sel]
-    sg = np.where(he[sel] & 1, -1, 1)
-    keep2 = np.asarray(B[lf, br]).ravel() != 0
-    ordr = np.lexsort((step[sel][keep2], lf[keep2]))
-    loop = lf[keep2][ordr]
-    branch = br[keep2][ordr]
-    sign = sg[keep2][ordr]
-    # a branch walked both ways cancels in B; keep only the first walk
+    new_id = np.cumsum(nonempty) - 1
+    if len(loop):
+        keep = nonempty[loop] & (np.asarray(B[loop, branch]).ravel() != 0)
+    else:
+        keep = np.zeros(0, bool)
+    loop, branch, sign, step = new_id[loop[keep]], branch[keep], sign[keep], step[keep]
+    order = np.lexsort((step, loop))
+    loop, branch, sign = loop[order], branch[order], sign[order]
     key = loop * (nb + 1) + branch
-    _, firstk = np.unique(key, return_index=True)
+    _, firstk = np.unique(key, return_index=True)   # a branch met twice the same way: keep one
     firstk.sort()
-    return LoopSet("windows", B, loop[firstk], branch[firstk], sign[firstk],
-                   np.ones(B.shape[0], np.int64))
+    B = B[nonempty]
+    return LoopSet(method, csr_matrix(B), loop[firstk], branch[firstk], sign[firstk],
+                   np.full(B.shape[0], clockwise, np.int64))
+
+
+def _concat(sets: list[LoopSet], nb: int) -> LoopSet:
+    """Several loop sets as one (loops renumbered in order)."""
+    if len(sets) == 1:
+        return sets[0]
+    offset = np.cumsum([0] + [ls.n_loops for ls in sets[:-1]])
+    return LoopSet(
+        sets[0].method,
+        csr_matrix(sp_vstack([ls.B for ls in sets])),
+        np.concatenate([ls.loop + o for ls, o in zip(sets, offset)]),
+        np.concatenate([ls.branch for ls in sets]),
+        np.concatenate([ls.sign for ls in sets]),
+        np.concatenate([ls.clockwise for ls in sets]),
+    )
+
+
+def _tie_loops(topo: Topology, ties: np.ndarray, drawn_conductors: np.ndarray, xy: np.ndarray) -> LoopSet:
+    """Loops closed by conductors that are not part of the drawing (ties).
+
+    Nodes are formed by the drawn conductors only. A spanning forest over
+    branches and ties that takes ties only to join islands leaves the other
+    ties as chords; each closes the loop tie → tree path back, which is
+    oriented clockwise on screen by the shoelace sum of its points.
+    """
+    nb, npnt = topo.n_branches, topo.n_points
+    ca, cb = topo.part_a[drawn_conductors], topo.part_b[drawn_conductors]
+    _, lab = csgraph.connected_components(coo_matrix((np.ones(len(ca)), (ca, cb)), shape=(npnt, npnt)),
+                                          directed=False)
+    nn = int(lab.max()) + 1
+    pa_b = topo.part_a[topo.branch_parts]
+    pb_b = topo.part_b[topo.branch_parts]
+    eu = np.concatenate([lab[pa_b], lab[topo.part_a[ties]]])   # edges: branches, then ties
+    ev = np.concatenate([lab[pb_b], lab[topo.part_b[ties]]])
+    weight = np.r_[np.ones(nb), np.full(len(ties), 2.0)]
+    _, roots = component_roots(nn, eu, ev, np.zeros(0, np.int64))
+    forest = spanning_forest(nn, eu, ev, weight, roots)
+    in_tree = np.zeros(len(eu), bool)
+    in_tree[forest.edge[forest.edge >= 0]] = True
+    chords = nb + np.flatnonzero(~in_tree[nb:])
+    chords = chords[eu[chords] != ev[chords]]
+    # the loop runs along the tie from a to b, then back from b to a through the tree
+    loop, edge, sign, step = _tree_paths(forest, forest.edge, ev[chords], eu[chords], eu)
+    is_branch = edge < nb
+    ls = _from_entries("windows", loop[is_branch], edge[is_branch], sign[is_branch], step[is_branch],
+                       len(chords), nb, clockwise=0)
+    if ls.n_loops == 0:
+        return ls
+    # orientation: shoelace over each branch's ends, closing the gaps (wires, ties) straight
+    u = np.where(ls.sign > 0, pa_b[ls.branch], pb_b[ls.branch])
+    v = np.where(ls.sign > 0, pb_b[ls.branch], pa_b[ls.branch])
+    last = np.r_[ls.loop[1:] != ls.loop[:-1], True]
+    first_u = u[np.searchsorted(ls.loop, ls.loop)]
+    to = np.where(last, first_u, np.roll(u, -1))
+    cross = (xy[u, 0] * xy[v, 1] - xy[v, 0] * xy[u, 1]) + (xy[v, 0] * xy[to, 1] - xy[to, 0] * xy[v, 1])
+    sense = np.sign(np.bincount(ls.loop, weights=cross, minlength=ls.n_loops)).astype(np.int64)
+    ls.flip(sense < 0)
+    ls.clockwise = np.where(sense == 0, 0, 1)
+    return ls
+
+
+def _tree_paths(forest: Forest, tree_branch: np.ndarray, start: np.ndarray, end: np.ndarray,
+                br_u: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """Tree paths from ``start[k]`` to ``end[k]`` as (path, branch, sign, step) entries.
+
+    All paths are walked together, one tree step per round, so the cost is
+    (depth × paths) in numpy, not in Python. Sign +1 where the path runs from
+    the branch's first terminal (node ``br_u``) to its second. Steps start at 1.
+    """
+    x, y = start.copy(), end.copy()
+    loops, branches, signs, steps = [], [], [], []
+    active = np.flatnonzero(x != y)
+    depth, parent = forest.depth, forest.parent
+    step = 1
+    side_y: list[tuple[np.ndarray, np.ndarray, np.ndarray, int]] = []
+    while len(active):
+        up_x = depth[x[active]] >= depth[y[active]]
+        ix = active[up_x]                          # from the start side: x -> parent(x)
+        bx = tree_branch[x[ix]]
+        loops.append(ix)
+        branches.append(bx)
+        signs.append(np.where(br_u[bx] == x[ix], 1, -1))
+        steps.append(np.full(len(ix), step))
+        x[ix] = parent[x[ix]]
+        iy = active[~up_x]                         # from the end side, walked later: parent(y) -> y
+        by = tree_branch[y[iy]]
+        side_y.append((iy, by, np.where(br_u[by] == parent[y[iy]], 1, -1), step))
+        y[iy] = parent[y[iy]]
+        active = active[x[active] != y[active]]
+        step += 1
+    big = 2 * step + 1
+    for iy, by, sy, st in side_y:
+        loops.append(iy)
+        branches.append(by)
+        signs.append(sy)
+        steps.append(np.full(len(iy), big - st))
+    if not loops:
+        z = np.zeros(0, np.int64)
+        return z, z, z, z
+    return (np.concatenate(loops), np.concatenate(branches), np.concatenate(signs), np.concatenate(steps))
 
 
 def _cycle_positions(nxt: np.ndarray, face: np.ndarray, nfaces: int) -> np.ndarray:
@@ -292,7 +479,6 @@ def _cycle_positions(nxt: np.ndarray, face: np.ndarray, nfaces: int) -> np.ndarr
     np.minimum.at(start, face, np.arange(n))
     is_start = np.zeros(n, bool)
     is_start[start] = True
-    # distance to the start going forward: jump until we hit the start
     dist = np.where(is_start, 0, 1).astype(np.int64)
     ptr = np.where(is_start, np.arange(n), nxt)
     while True:
@@ -312,52 +498,19 @@ def fundamental_loops(topo: Topology, forest: Forest, tree_branch: np.ndarray) -
     ``forest`` spans the nodes; ``tree_branch[x]`` is the branch joining node
     ``x`` to its parent (-1 at roots). Every branch not in the tree is a chord;
     its loop runs along the chord from its first terminal to its second, then
-    back through the tree. All chords are walked together, one tree step per
-    round, so the cost is (depth × chords) in numpy, not in Python.
+    back through the tree.
     """
     nb = topo.n_branches
     in_tree = np.zeros(nb, bool)
     in_tree[tree_branch[tree_branch >= 0]] = True
     chords = np.flatnonzero(~in_tree)
     L = len(chords)
-    loops = [np.arange(L)]
-    branches = [chords]
-    signs = [np.ones(L, np.int64)]
-    steps = [np.zeros(L, np.int64)]
-    x = topo.br_v[chords].copy()   # walking up from the chord's second terminal…
-    y = topo.br_u[chords].copy()   # …and from its first, to meet in the middle
-    active = np.flatnonzero(x != y)
-    depth, parent = forest.depth, forest.parent
-    step = 1
-    side_a: list[tuple[np.ndarray, np.ndarray, np.ndarray, int]] = []
-    while len(active):
-        xa, ya = x[active], y[active]
-        up_x = depth[xa] >= depth[ya]
-        # side b (from x): traversing x -> parent(x)
-        ix = active[up_x]
-        bx = tree_branch[x[ix]]
-        loops.append(ix)
-        branches.append(bx)
-        signs.append(np.where(topo.br_u[bx] == x[ix], 1, -1))
-        steps.append(np.full(len(ix), step))
-        x[ix] = parent[x[ix]]
-        # side a (from y): walked later in reverse, parent(y) -> y
-        iy = active[~up_x]
-        by = tree_branch[y[iy]]
-        side_a.append((iy, by, np.where(topo.br_u[by] == parent[y[iy]], 1, -1), step))
-        y[iy] = parent[y[iy]]
-        active = active[x[active] != y[active]]
-        step += 1
-    big = 2 * step + 1
-    for iy, by, sy, st in side_a:
-        loops.append(iy)
-        branches.append(by)
-        signs.append(sy)
-        steps.append(np.full(len(iy), big - st))
-    loop = np.concatenate(loops)
-    branch = np.concatenate(branches)
-    sign = np.concatenate(signs)
-    order = np.lexsort((np.concatenate(steps), loop))
+    loop, branch, sign, step = _tree_paths(forest, tree_branch, topo.br_v[chords], topo.br_u[chords], topo.br_u)
+    loop = np.concatenate([np.arange(L), loop])
+    branch = np.concatenate([chords, branch])
+    sign = np.concatenate([np.ones(L, np.int64), sign])
+    step = np.concatenate([np.zeros(L, np.int64), step])
+    order = np.lexsort((step, loop))
     loop, branch, sign = loop[order], branch[order], sign[order]
     B = csr_matrix(coo_matrix((sign.astype(float), (loop, branch)), shape=(L, nb)))
     return LoopSet("fundamental", B, loop, branch, sign, np.zeros(L, np.int64))

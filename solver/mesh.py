@@ -80,7 +80,7 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
     ground_node = topo.node_of_point[topo.point_index[ground]] if ground is not None else -1
     preferred = _preferred_references(topo, ground_node)
     label, roots = component_roots(n, topo.br_u, topo.br_v, preferred)
-    forest = bfs_forest(n, topo.br_u, topo.br_v, roots)
+    forest = bfs_forest(n, topo.br_u, topo.br_v, roots, prefer=topo.br_r)
 
     # Windows when the drawing allows, else a shallow tree's loops; if either is
     # too ill-conditioned, the loops of a least-resistance tree.
@@ -200,13 +200,16 @@ def _check_kvl(loops: LoopSet, v_br: np.ndarray, size: np.ndarray, topo: Topolog
     """Raise :class:`IllConditionedError` if any loop's KVL residual is above tolerance.
 
     The residual is measured against ``size``, the magnitude of each branch's
-    terms (|R·i| + |E|, or the source voltage), so a loop whose terms cancel
-    exactly is not mistaken for a poor one.
+    terms (|R·i|, |E|, a source's voltage) as a person adds them round the
+    loop, with a floor of 1e-6 of the largest term in the circuit (so residuals
+    at rounding level, 1e-15 of it, always pass) so that a
+    loop carrying (almost) nothing is not judged by rounding noise alone.
     """
     if loops.n_loops == 0:
         return
     res = np.abs(loops.B @ v_br)
-    scale = abs(loops.B) @ size
+    floor = 1e-6 * float(size.max(initial=0.0))
+    scale = abs(loops.B) @ size + floor
     rel = res / np.maximum(scale, 1e-300)
     worst = int(np.argmax(rel))
     if rel[worst] > KVL_TOLERANCE and res[worst] > 1e-300:
