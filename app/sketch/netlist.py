@@ -249,16 +249,24 @@ def to_circuit(sketch: Sketch) -> Netlist:
 
 def _tie_grounds(c: Circuit, parts: list[PlacedPart], terminals: dict[str, list[GridPoint]],
                  groups: _Groups, point_at: dict[GridPoint, str]) -> str | None:
-    """Join every ground symbol's node to the first one's; the ground point name or None."""
+    """Join the ground symbols' nodes into one; the ground point name or None.
+
+    The symbols are tied in reading order (row by row, left to right), each to
+    the previous one not yet joined, so that grounds along one rail are tied by
+    short straight runs that cross nothing: the solver can then still use the
+    windows of the drawing, as a person does who reads the grounds as one rail.
+    """
     grounds = list(dict.fromkeys(terminals[p.name][0] for p in parts if p.kind == "ground"))
     if not grounds:
         return None
     first = grounds[0]
     n = 0
-    for g in grounds[1:]:
-        if groups.find(g) != groups.find(first):
+    previous = None
+    for g in sorted(grounds, key=lambda p: (p[1], p[0])):
+        if previous is not None and groups.find(g) != groups.find(previous):
             n += 1
-            c.wire(f"{GROUND_TIE_PREFIX}{n}", point_at[first], point_at[g])
-            groups.join(g, first)
+            c.wire(f"{GROUND_TIE_PREFIX}{n}", point_at[previous], point_at[g])
+            groups.join(g, previous)
+        previous = g
     name = point_at[first]
     return name if name in c.points else None
