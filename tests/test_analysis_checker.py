@@ -10,7 +10,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from app.analysis import analyse, check_equation, check_values, equations
+from app.analysis import check_equation, check_values, equations
 from app.analysis.cli_support import check_equation_text, equations_text
 from reference_nodal import nodal_solve
 from test_analysis_circuits import CIRCUITS, solved
