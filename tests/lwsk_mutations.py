@@ -265,12 +265,12 @@ def huge_content(rng: random.Random, doc: Any, text: str) -> bytes:
     op = rng.randrange(3)
     if op == 0:
         doc["parts"] = [{"kind": "resistor", "name": f"R{k}", "x": k, "y": 0}
-                        for k in range(rng.choice([100, 3000]))]
+                        for k in range(rng.choice([100, 800]))]
     elif op == 1:
         part = {"kind": "resistor", "name": "R1", "x": 0, "y": 0, "label": "x" * rng.choice([201, 10**5])}
         doc["parts"] = [part]
     else:
-        doc["wires"] = [{"x1": 0, "y1": 0, "x2": 0, "y2": 1}] * rng.choice([500, 5000])
+        doc["wires"] = [{"x1": 0, "y1": 0, "x2": 0, "y2": 1}] * rng.choice([100, 1500])
     return _dump(doc)
 
 
