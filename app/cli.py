@@ -35,20 +35,23 @@ class _FileProblem(Exception):
 
 
 def _solve_file(path: str):
+    """The solution of the sketch in ``path`` and its cautions (app/assess)."""
+    from .assess import assess
     from .sketch.netlist import to_circuit
     sketch = _load(path)
     net = to_circuit(sketch)
-    return solve(net.circuit, ground=net.ground)
+    sol = solve(net.circuit, ground=net.ground)
+    return sol, assess(sketch, net, sol)
 
 
 def cmd_solve(args: argparse.Namespace) -> int:
     from .report import solution_dict, solution_table
-    sol = _solve_file(args.file)
+    sol, cautions = _solve_file(args.file)
     if args.json:
-        json.dump(solution_dict(sol), sys.stdout, indent=2, allow_nan=False)
+        json.dump(solution_dict(sol, cautions), sys.stdout, indent=2, allow_nan=False)
         sys.stdout.write("\n")
     else:
-        print(solution_table(sol, title=args.file))
+        print(solution_table(sol, title=args.file, cautions=cautions))
     return EXIT_OK
 
 

@@ -5,11 +5,14 @@ are left out; the person sees the parts they drew.
 """
 from __future__ import annotations
 
+from collections.abc import Sequence
+
 from solver import Solution
 
+from .assess import Caution
 from .units import format_value
 
-__all__ = ["solution_dict", "solution_table", "CAUTION"]
+__all__ = ["solution_dict", "solution_table", "caution_dict", "CAUTION"]
 
 CAUTION = ("Results come from an idealised linear DC model: they are no substitute for "
            "measurement. Mains and high-energy work follows local codes and licensed practice.")
@@ -19,8 +22,11 @@ def _shown(name: str) -> bool:
     return not name.startswith("~")
 
 
-def solution_dict(sol: Solution) -> dict:
-    """Parts, nodes, loops and warnings as JSON-ready data (SI base units)."""
+def solution_dict(sol: Solution, cautions: Sequence[Caution] = ()) -> dict:
+    """Parts, nodes, loops and warnings as JSON-ready data (SI base units).
+
+    ``warnings`` holds the solver's notes, then the cautions (see ``caution_dict``).
+    """
     parts = {
         name: {"current": sol.current(name), "voltage": sol.voltage(name), "power": sol.power(name)}
         for name in sol.parts if _shown(name)
@@ -35,6 +41,7 @@ def solution_dict(sol: Solution) -> dict:
     } for lp in sol.loops]
     warnings = [{"kind": n.kind, "message": n.message, "parts": [p for p in n.parts if _shown(p)]}
                 for n in sol.notes]
+    warnings += [caution_dict(c) for c in cautions]
     return {
         "ground": sol.ground,
         "loop_method": sol.loop_method,
@@ -47,14 +54,26 @@ def solution_dict(sol: Solution) -> dict:
     }
 
 
+# -- cautions (app/assess) ---------------------------------------------------------
+def caution_dict(c: Caution) -> dict:
+    """One caution as a ``warnings`` entry: kind, severity, part, parts, message, figures (SI, finite)."""
+    return {"kind": c.kind, "severity": c.severity, "part": c.part, "parts": list(c.parts),
+            "message": c.message, "figures": dict(c.figures)}
+
+
+def _caution_lines(cautions: Sequence[Caution]) -> list[str]:
+    return [f"Caution ({c.severity}): {c.message}" for c in cautions]
+# -- end of cautions ---------------------------------------------------------------
+
+
 def _table(header: list[str], rows: list[list[str]]) -> list[str]:
     widths = [max(len(h), *(len(r[i]) for r in rows)) if rows else len(h) for i, h in enumerate(header)]
     line = lambda cells: "  ".join(c.rjust(w) if i else c.ljust(w) for i, (c, w) in enumerate(zip(cells, widths)))  # noqa: E731
     return [line(header), line(["-" * w for w in widths])] + [line(r) for r in rows]
 
 
-def solution_table(sol: Solution, title: str = "") -> str:
-    """A plain-text report: parts, node potentials, loop currents, warnings."""
+def solution_table(sol: Solution, title: str = "", cautions: Sequence[Caution] = ()) -> str:
+    """A plain-text report: parts, node potentials, loop currents, warnings, cautions."""
     out: list[str] = []
     if title:
         out += [title, ""]
@@ -77,5 +96,6 @@ def solution_table(sol: Solution, title: str = "") -> str:
                 f"sum of absorbed power {shown} (Tellegen's theorem)."]
     for n in sol.notes:
         out.append(f"Note ({n.kind}): {n.message}")
+    out += _caution_lines(cautions)
     out += ["", CAUTION]
     return "\n".join(out)
