@@ -30,7 +30,7 @@ from scipy.sparse import vstack as sp_vstack
 
 from .graph import Forest, Topology, bfs_forest, component_roots, spanning_forest
 
-__all__ = ["LoopSet", "window_loops", "fundamental_loops", "orient_clockwise", "segments_cross", "crossing_mask"]
+__all__ = ["LoopSet", "window_loops", "fundamental_loops", "orient_clockwise", "crossing_mask"]
 
 
 @dataclass
@@ -196,11 +196,6 @@ def crossing_mask(p: np.ndarray, q: np.ndarray, ia: np.ndarray, ib: np.ndarray) 
     mask[s[bad]] = True
     mask[t[bad]] = True
     return mask
-
-
-def segments_cross(p: np.ndarray, q: np.ndarray, ia: np.ndarray, ib: np.ndarray) -> bool:
-    """True if any two segments meet anywhere but at a shared end point (see :func:`crossing_mask`)."""
-    return bool(crossing_mask(p, q, ia, ib).any())
 
 
 def window_loops(topo: Topology) -> LoopSet | None:
