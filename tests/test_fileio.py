@@ -134,8 +134,8 @@ MALFORMED_FIELDS = [
     (("colour",), "red", "colour: unknown field"),
     (("format",), "some-other-format", "format: this is not a Loopwright sketch"),
     (("format",), DELETE, "format: this is not a Loopwright sketch"),
-    (("version",), 3, "version: the file is version 3, written by a newer Loopwright; "
-                      "this one reads versions up to 2"),
+    (("version",), 4, "version: the file is version 4, written by a newer Loopwright; "
+                      "this one reads versions up to 3"),
     (("version",), "1", "version: must be a whole number ≥ 1"),
     (("version",), 0, "version: must be a whole number ≥ 1"),
 ]

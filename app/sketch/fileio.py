@@ -15,6 +15,7 @@ is its JSON Schema.
 from __future__ import annotations
 
 import json
+import keyword
 import math
 import os
 import re
@@ -24,23 +25,32 @@ from typing import Any
 
 from .atomic import SaveError, backup_path, write_atomically
 from .kinds import KINDS
-from .model import ROTATIONS, PlacedPart, Sketch, Wire
+from .model import CHECK_KINDS, ROTATIONS, BranchTag, PlacedPart, SavedCheck, Sketch, Wire
 
 __all__ = [
     "SketchFileError", "SaveError", "backup_path", "save_sketch", "load_sketch", "dumps_sketch", "loads_sketch",
     "FORMAT_TAG", "VERSION", "MAX_BYTES", "MAX_DEPTH", "GRID_LIMIT", "NAME_PATTERN", "LABEL_MAX",
+    "CURRENT_NAME_PATTERN", "CHECK_MAX", "MAX_CHECKS",
 ]
 
 FORMAT_TAG = "loopwright-sketch"
-VERSION = 2
+VERSION = 3
 MAX_BYTES = 20 * 1024 * 1024
 MAX_DEPTH = 16                 # the format itself nests 4 deep
 MAX_NUMBER_DIGITS = 40
 GRID_LIMIT = 1_000_000         # |x|, |y| of any grid point
 NAME_PATTERN = r"[A-Za-z0-9][A-Za-z0-9_.+\-]{0,31}"
 LABEL_MAX = 200
+CURRENT_NAME_PATTERN = r"[A-Za-z][A-Za-z0-9_]{0,31}"
+CHECK_MAX = 500                # characters of one typed check
+MAX_CHECKS = 1000
 
-_TOP_FIELDS = ("format", "version", "parts", "wires")
+_TOP_FIELDS = ("format", "version", "parts", "wires", "tags", "checks")
+_TOP_REQUIRED = ("format", "version", "parts", "wires")
+_TAG_FIELDS = ("name", "part", "forward")
+_CHECK_FIELDS = ("text", "kind", "tolerance")
+_CURRENT_NAME = re.compile(CURRENT_NAME_PATTERN)
+_UNTAGGABLE = ("ground",)
 _PART_FIELDS = ("kind", "name", "x", "y", "rotation", "mirror", "values", "flags", "choices", "label")
 _PART_REQUIRED = ("kind", "name", "x", "y")
 _WIRE_FIELDS = ("x1", "y1", "x2", "y2")
@@ -61,9 +71,14 @@ def _v1_to_v2(doc: dict[str, Any]) -> dict[str, Any]:
     return dict(doc, version=2)
 
 
+def _v2_to_v3(doc: dict[str, Any]) -> dict[str, Any]:
+    """Version 3 adds the person's current tags and typed checks; a version-2 sketch has none."""
+    return dict(doc, version=3, tags=[], checks=[])
+
+
 # Upgrades from an older version: _MIGRATIONS[n] turns a version-n document
 # (parsed JSON, not yet checked) into a version n+1 one.  Version 1 is the first.
-_MIGRATIONS: dict[int, Callable[[dict[str, Any]], dict[str, Any]]] = {1: _v1_to_v2}
+_MIGRATIONS: dict[int, Callable[[dict[str, Any]], dict[str, Any]]] = {1: _v1_to_v2, 2: _v2_to_v3}
 
 
 class SketchFileError(ValueError):
@@ -281,12 +296,57 @@ def _upgrade(doc: Any) -> dict[str, Any]:
     return doc
 
 
-def _validate(doc: Any) -> tuple[list[PlacedPart], list[Wire]]:
-    doc = _object(_upgrade(doc), "", _TOP_FIELDS, _TOP_FIELDS)
+def _tag(doc: Any, path: str, parts: dict[str, PlacedPart], names: dict[str, str],
+         anchors: dict[str, str]) -> BranchTag:
+    doc = _object(doc, path, _TAG_FIELDS, _TAG_FIELDS)
+    name = doc["name"]
+    if not isinstance(name, str) or not _CURRENT_NAME.fullmatch(name) or keyword.iskeyword(name):
+        raise _Bad(f"{path}.name", "must be a current name: 1 to 32 letters, digits or _, "
+                                   "starting with a letter (for example Ia or I_load)")
+    if name in parts:
+        raise _Bad(f"{path}.name", f"{name} is already the name of a part")
+    if name in names:
+        raise _Bad(f"{path}.name", f"{name} is already the name of the current in {names[name]}")
+    part = doc["part"]
+    if not isinstance(part, str) or part not in parts:
+        shown = _show(part) if isinstance(part, str) else "that"
+        raise _Bad(f"{path}.part", f"there is no part {shown} in this sketch")
+    if parts[part].kind in _UNTAGGABLE:
+        raise _Bad(f"{path}.part", f"{part} is a {parts[part].kind} symbol, which carries no current of its own")
+    if part in anchors:
+        raise _Bad(f"{path}.part", f"{part} already carries the tag in {anchors[part]}")
+    forward = _bool(doc["forward"], f"{path}.forward")
+    names[name] = anchors[part] = path
+    return BranchTag(name, part, forward)
+
+
+def _check(doc: Any, path: str) -> SavedCheck:
+    doc = _object(doc, path, _CHECK_FIELDS, ("text", "kind"))
+    text = _text(doc["text"], f"{path}.text", CHECK_MAX)
+    if not text.strip():
+        raise _Bad(f"{path}.text", "is empty")
+    kind = _option(doc["kind"], f"{path}.kind", CHECK_KINDS)
+    tol = doc.get("tolerance", 0.01)
+    if type(tol) not in (int, float) or not (math.isfinite(tol) and 0 < tol < 1):
+        raise _Bad(f"{path}.tolerance", "must be a fraction between 0 and 1 (0.01 is 1 %)")
+    return SavedCheck(text, kind, float(tol))
+
+
+def _validate(doc: Any) -> tuple[list[PlacedPart], list[Wire], list[BranchTag], list[SavedCheck]]:
+    doc = _object(_upgrade(doc), "", _TOP_FIELDS, _TOP_REQUIRED)
     seen: dict[str, str] = {}
     parts = [_part(p, f"parts[{i}]", seen) for i, p in enumerate(_list(doc["parts"], "parts"))]
     wires = [_wire(w, f"wires[{i}]") for i, w in enumerate(_list(doc["wires"], "wires"))]
-    return parts, wires
+    by_name = {p.name: p for p in parts}
+    names: dict[str, str] = {}
+    anchors: dict[str, str] = {}
+    tags = [_tag(t, f"tags[{i}]", by_name, names, anchors)
+            for i, t in enumerate(_list(doc.get("tags", []), "tags"))]
+    checks_doc = _list(doc.get("checks", []), "checks")
+    if len(checks_doc) > MAX_CHECKS:
+        raise _Bad("checks", f"must hold at most {MAX_CHECKS} checks")
+    checks = [_check(c, f"checks[{i}]") for i, c in enumerate(checks_doc)]
+    return parts, wires, tags, checks
 
 
 def _error(bad: _Bad, lead: str = "") -> SketchFileError:
@@ -299,7 +359,7 @@ def loads_sketch(text: str | bytes) -> Sketch:
     """The sketch in ``text`` (a whole .lwsk document); raises SketchFileError."""
     doc = _parse(text)
     try:
-        parts, wires = _validate(doc)
+        parts, wires, tags, checks = _validate(doc)
     except _Bad as bad:
         raise _error(bad) from None
     sketch = Sketch()
@@ -307,6 +367,10 @@ def loads_sketch(text: str | bytes) -> Sketch:
         sketch.add_part(part)
     for wire in wires:
         sketch.add_wire(wire)
+    for tag in tags:
+        sketch.set_tag(tag.part, tag)
+    for check in checks:
+        sketch.add_check(check)
     return sketch
 
 
@@ -347,7 +411,7 @@ def _block(key: str, items: list[dict[str, Any]]) -> str:
 
 
 def dumps_sketch(sketch: Sketch) -> str:
-    """The .lwsk text of ``sketch``: one part or wire per line, the same text for the same sketch.
+    """The .lwsk text of ``sketch``: one part, wire, tag or check per line, the same text for the same sketch.
 
     Raises SketchFileError if the sketch holds something the format cannot
     (the message names the field, as for loading).
@@ -356,13 +420,16 @@ def dumps_sketch(sketch: Sketch) -> str:
         "format": FORMAT_TAG, "version": VERSION,
         "parts": [_part_doc(p) for p in sketch.parts],
         "wires": [{"x1": w.x1, "y1": w.y1, "x2": w.x2, "y2": w.y2} for w in sketch.wires],
+        "tags": [{"name": t.name, "part": t.part, "forward": t.forward} for t in sketch.tags],
+        "checks": [{"text": c.text, "kind": c.kind, "tolerance": _as_float(c.tolerance)} for c in sketch.checks],
     }
     try:
         _validate(doc)  # never write a file that would not load
     except _Bad as bad:
         raise _error(bad, "The sketch cannot be saved: ") from None
     head = f'{{\n  "format": {json.dumps(FORMAT_TAG)},\n  "version": {VERSION},\n'
-    return f'{head}{_block("parts", doc["parts"])},\n{_block("wires", doc["wires"])}\n}}\n'
+    blocks = ",\n".join(_block(key, doc[key]) for key in ("parts", "wires", "tags", "checks"))
+    return f'{head}{blocks}\n}}\n'
 
 
 def save_sketch(sketch: Sketch, path: str | os.PathLike[str], *, backup: bool = True) -> None:

@@ -12,7 +12,7 @@ from dataclasses import dataclass, field, replace
 
 from .kinds import KINDS, kind_spec
 
-__all__ = ["PlacedPart", "Wire", "Sketch", "transform", "ROTATIONS"]
+__all__ = ["PlacedPart", "Wire", "BranchTag", "SavedCheck", "Sketch", "transform", "ROTATIONS", "CHECK_KINDS"]
 
 ROTATIONS = (0, 90, 180, 270)
 GridPoint = tuple[int, int]
@@ -107,6 +107,38 @@ class Wire:
         return Wire(a[0], a[1], b[0], b[1])
 
 
+@dataclass(frozen=True)
+class BranchTag:
+    """A person's named, directed current on the branch through ``part``.
+
+    ``forward`` counts the current from the part's first terminal to its
+    second. Every part in series with ``part`` carries the same current, so a
+    branch holds one tag; which part anchors it is the person's choice.
+    """
+
+    name: str
+    part: str
+    forward: bool = True
+
+
+CHECK_KINDS = ("equation", "values")
+
+
+@dataclass(frozen=True)
+class SavedCheck:
+    """A check a person typed, kept so a reviewer sees what was checked.
+
+    ``kind`` is ``"equation"`` (a KVL or KCL equation) or ``"values"``
+    (numeric answers such as ``Ia = 12.3m``, compared within ``tolerance``,
+    a fraction). Only the text is kept; the verdict is worked out afresh
+    against the circuit as it is now.
+    """
+
+    text: str
+    kind: str = "equation"
+    tolerance: float = 0.01
+
+
 Listener = Callable[[], None]
 
 
@@ -116,6 +148,8 @@ class Sketch:
     def __init__(self) -> None:
         self._parts: dict[str, PlacedPart] = {}
         self._wires: list[Wire] = []
+        self._tags: dict[str, BranchTag] = {}     # by anchoring part
+        self._checks: list[SavedCheck] = []
         self._listeners: list[Listener] = []
 
     # -- listening ----------------------------------------------------------
@@ -136,6 +170,25 @@ class Sketch:
     def wires(self) -> list[Wire]:
         return list(self._wires)
 
+    @property
+    def tags(self) -> list[BranchTag]:
+        """The current tags on parts that exist, in order of their names.
+
+        A tag whose part was deleted is kept out of sight (and out of files)
+        so that undoing the deletion brings it back with the part.
+        """
+        live = [t for t in self._tags.values() if t.part in self._parts]
+        return sorted(live, key=lambda t: (t.name, t.part))
+
+    def tag_on(self, part: str) -> BranchTag | None:
+        """The tag anchored on ``part``, if any."""
+        tag = self._tags.get(part)
+        return tag if tag is not None and part in self._parts else None
+
+    @property
+    def checks(self) -> list[SavedCheck]:
+        return list(self._checks)
+
     def part(self, name: str) -> PlacedPart:
         return self._parts[name]
 
@@ -145,7 +198,7 @@ class Sketch:
     def next_name(self, kind: str) -> str:
         """The next free reference designator for ``kind`` (R1, R2, …)."""
         prefix = kind_spec(kind).prefix or "GND"
-        used = {p.name for p in self._parts.values()}
+        used = {p.name for p in self._parts.values()} | set(self._tags)  # a deleted part's tag waits for undo
         n = 1
         while f"{prefix}{n}" in used:
             n += 1
@@ -178,6 +231,9 @@ class Sketch:
         if new.name != name and new.name in self._parts:
             raise ValueError(f"a part named {new.name} already exists")
         old = self._parts[name]
+        if new.name != name and name in self._tags:  # a renamed part keeps its tag
+            self._tags = {(new.name if k == name else k): (replace(t, part=new.name) if k == name else t)
+                          for k, t in self._tags.items() if k != new.name}
         self._parts = {(new.name if k == name else k): (new if k == name else v)
                        for k, v in self._parts.items()}
         self._changed()
@@ -212,9 +268,39 @@ class Sketch:
         self._changed()
         return old
 
+    def set_tag(self, part: str, tag: BranchTag | None) -> BranchTag | None:
+        """Put ``tag`` on ``part`` (None takes the tag off); returns the tag that was there."""
+        if tag is not None and tag.part != part:
+            raise ValueError(f"the tag {tag.name} names the part {tag.part}, not {part}")
+        if tag is not None and part not in self._parts:
+            raise ValueError(f"there is no part named {part}")
+        old = self._tags.pop(part, None)
+        if tag is not None:
+            self._tags[part] = tag
+        self._changed()
+        return old
+
+    def add_check(self, check: SavedCheck, index: int | None = None) -> None:
+        """Keep a typed check; ``index`` puts it back at a position (used by undo)."""
+        if check.kind not in CHECK_KINDS:
+            raise ValueError(f"a check is an equation or values, not {check.kind!r}")
+        if index is None:
+            self._checks.append(check)
+        else:
+            self._checks.insert(index, check)
+        self._changed()
+
+    def remove_check(self, index: int) -> SavedCheck:
+        """Drop the check at ``index`` and return it."""
+        check = self._checks.pop(index)
+        self._changed()
+        return check
+
     def clear(self) -> None:
         self._parts.clear()
         self._wires.clear()
+        self._tags.clear()
+        self._checks.clear()
         self._changed()
 
     # -- comparing ------------------------------------------------------------
@@ -226,6 +312,8 @@ class Sketch:
                    tuple(sorted(p.choices.items())))
                   for p in self._parts.values()),
             tuple(self._wires),
+            tuple(self.tags),
+            tuple(self._checks),
         )
 
     def __eq__(self, other: object) -> bool:
