@@ -29,17 +29,21 @@ def display_reading(value: float, unit: str) -> str:
     """
     if not math.isfinite(value):
         return f"OL {unit}"
-    for exp, prefix in _RANGES:
-        x = value / 10.0 ** exp
-        if abs(x) >= 1.0 or exp == _RANGES[-1][0]:
-            whole = len(str(int(abs(x)))) if abs(x) >= 1.0 else 1
-            text = f"{x:.{max(0, 4 - whole)}f}"
-            if abs(float(text)) >= 1000.0 and exp < _RANGES[0][0]:
-                continue  # rounding carried into the next range
-            break
+    k = next((i for i, (exp, _) in enumerate(_RANGES) if abs(value) >= 10.0 ** exp), len(_RANGES) - 1)
+    text = _digits(value / 10.0 ** _RANGES[k][0])
+    if abs(float(text)) >= 1000.0 and k > 0:  # rounding carried into the next range up
+        k -= 1
+        text = _digits(value / 10.0 ** _RANGES[k][0])
+    prefix = _RANGES[k][1]
     if float(text) == 0.0:
         text = text.lstrip("-")
     return f"{text} {prefix}{unit}"
+
+
+def _digits(x: float) -> str:
+    """``x`` (under 1000 in size, or any size on the top range) to four significant digits."""
+    whole = len(str(int(abs(x)))) if abs(x) >= 1.0 else 1
+    return f"{x:.{max(0, 4 - whole)}f}"
 
 
 @dataclass(frozen=True)
