@@ -18,6 +18,9 @@ from .errors import (
 
 __all__ = ["Circuit", "Part", "RESISTOR", "CELL", "CURRENT_SOURCE", "WIRE", "SWITCH"]
 
+MAX_VALUE = 1e18        # largest magnitude of any value, SI units: results stay far from overflow
+MIN_RESISTANCE = 1e-12  # smallest non-zero resistance, ohms (1 pΩ; the range asked for starts at 1 µΩ)
+
 RESISTOR = "resistor"
 CELL = "cell"
 CURRENT_SOURCE = "current_source"
@@ -65,9 +68,19 @@ def _check_value(name: str, what: str, value: float, *, zero_ok: bool, turn_hint
         raise InvalidValueError(f"{name}: the {what} is not a number (NaN).", [name])
     if math.isinf(v):
         raise InvalidValueError(f"{name}: the {what} is infinite; give a finite value.", [name])
+    if abs(v) > MAX_VALUE:
+        raise InvalidValueError(
+            f"{name}: the {what} ({v:g}) is beyond any real part (more than {MAX_VALUE:g} in SI units).",
+            [name])
     if v < 0:
         hint = " Give a positive value and turn the part round instead." if turn_hint else ""
         raise InvalidValueError(f"{name}: the {what} cannot be negative ({v:g}).{hint}", [name])
+    if abs(v) < 1e-300:
+        v = 0.0  # a subnormal value is zero for any real part
+    if 0 < v < MIN_RESISTANCE and what.endswith("resistance"):
+        raise InvalidValueError(
+            f"{name}: the {what} ({v:g} Ω) is below any real part (less than {MIN_RESISTANCE:g} Ω); "
+            "use a wire, or an ideal cell, instead.", [name])
     if v == 0 and not zero_ok:
         raise InvalidValueError(
             f"{name}: the {what} is zero; a zero-ohm connection is a wire.", [name]

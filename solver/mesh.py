@@ -33,6 +33,8 @@ __all__ = ["solve", "DENSE_LIMIT", "KVL_TOLERANCE"]
 
 DENSE_LIMIT = 400       # unknowns up to which the dense solver is used
 KVL_TOLERANCE = 1e-9    # largest relative KVL residual accepted
+TINY = 1e-300           # results below this are rounding residue and shown as zero
+WIDE_SPREAD = 1e6       # resistance ratio above which fundamental loops follow the least-resistance tree
 
 
 def solve(circuit: Circuit, ground: str | None = None) -> Solution:
@@ -83,11 +85,17 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
     forest = bfs_forest(n, topo.br_u, topo.br_v, roots, prefer=topo.br_r)
 
     # Windows when the drawing allows, else a shallow tree's loops; if either is
-    # too ill-conditioned, the loops of a least-resistance tree.
+    # too ill-conditioned, the loops of a least-resistance tree. With resistances
+    # spread over many decades the shallow tree is skipped: its loops may carry a
+    # large resistance in several loops and lose digits without failing KVL.
+    positive = topo.br_r[topo.br_r > 0]
+    wide = len(positive) > 0 and positive.max() > WIDE_SPREAD * positive.min()
+    makers = [lambda: window_loops(topo)]
+    if not wide:
+        makers.append(lambda: fundamental_loops(topo, forest, forest.edge))
+    makers.append(lambda: _least_resistance_loops(topo, roots))
     failure: IllConditionedError | None = None
-    for make in (lambda: window_loops(topo),
-                 lambda: fundamental_loops(topo, forest, forest.edge),
-                 lambda: _least_resistance_loops(topo, roots)):
+    for make in makers:
         loops = make()
         if loops is None:
             continue
@@ -121,6 +129,13 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
     voltage[other] = voltage_all[other]
     voltage[topo.conductor_parts] = 0.0
 
+    if not (np.all(np.isfinite(current)) and np.all(np.isfinite(voltage)) and np.all(np.isfinite(potential))
+            and np.all(np.isfinite(voltage * current))):
+        raise IllConditionedError(
+            "The results are too large to represent: check for values far beyond real parts.",
+            _extreme_parts(topo))
+    for arr in (current, voltage, potential):   # subnormal results are rounding residue
+        arr[np.abs(arr) < TINY] = 0.0
     notes = _notes(topo, loops, i_br, label, roots, ground_node)
     references = [topo.node_names[r] for r in np.unique(roots)
                   if r != ground_node and _island_has_branch(topo, label, r)]
@@ -187,13 +202,26 @@ def _solve_mesh(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.ndarray]
         # The topology checks rule out true singularity, so this is rounding.
         raise IllConditionedError(
             "The loop equations are too ill-conditioned to solve: the values in this "
-            "circuit span too wide a range to give trustworthy results.", []) from None
+            "circuit span too wide a range to give trustworthy results.", _extreme_parts(topo)) from None
     if not np.all(np.isfinite(y)):
         raise IllConditionedError(
             "The loop equations are too ill-conditioned to solve: the values in this "
-            "circuit span too wide a range to give trustworthy results.", [])
+            "circuit span too wide a range to give trustworthy results.", _extreme_parts(topo))
     x = s * y
     return x[:L], x[L:]
+
+
+def _extreme_parts(topo: Topology) -> list[str]:
+    """The parts with the largest and the smallest resistance, and the largest EMF: where to look."""
+    if topo.n_branches == 0:
+        return []
+    r = np.where(topo.br_cs, np.nan, topo.br_r)
+    picks = []
+    if np.any(np.isfinite(r) & (r > 0)):
+        rp = np.where(r > 0, r, np.nan)
+        picks += [int(np.nanargmax(rp)), int(np.nanargmin(rp))]
+    picks.append(int(np.argmax(np.abs(topo.br_e) + np.abs(topo.br_j))))
+    return [topo.part_names[topo.branch_parts[k]] for k in dict.fromkeys(picks)]
 
 
 def _check_kvl(loops: LoopSet, v_br: np.ndarray, size: np.ndarray, topo: Topology) -> None:
