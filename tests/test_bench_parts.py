@@ -19,7 +19,7 @@ from app.sketch.bench_parts import (
     lamp_hot_resistance,
     parse_awg,
 )
-from app.sketch.fileio import SketchFileError, dumps_sketch, loads_sketch
+from app.sketch.fileio import VERSION, SketchFileError, dumps_sketch, loads_sketch
 from app.sketch.kinds import KINDS
 from app.sketch.model import PlacedPart, Sketch, Wire
 from app.sketch.netlist import to_circuit
@@ -212,7 +212,7 @@ def test_bench_parts_round_trip_byte_for_byte():
     text = dumps_sketch(s)
     again = loads_sketch(text)
     assert again == s and dumps_sketch(again) == text
-    assert json.loads(text)["version"] == 2
+    assert json.loads(text)["version"] == VERSION
     assert again.part("W1").choice("material") == "aluminium" and again.part("F1").flag("blown")
 
 
@@ -231,7 +231,7 @@ def test_version_1_file_still_opens():
     assert s.part("B1").label == "bench bank"
     _, sol = solved(s)
     assert sol.current("R1") == pytest.approx(12.0 / 4700.05)  # Ohm's law
-    assert json.loads(dumps_sketch(s))["version"] == 2
+    assert json.loads(dumps_sketch(s))["version"] == VERSION  # upgraded step by step
 
 
 def _doc():
@@ -273,4 +273,4 @@ def test_schema_choices_match_the_program():
         want = {c.key: list(c.keys) for c in spec.choices}
         got = {k: v["enum"] for k, v in rules[kind]["choices"]["properties"].items()}
         assert got == want
-    assert schema["properties"]["version"]["const"] == 2
+    assert schema["properties"]["version"]["const"] == VERSION
