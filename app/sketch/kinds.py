@@ -26,7 +26,9 @@ class ValueField:
     Values are in SI base units, with three exceptions kept in the trade's
     own units: capacity in Ah, cross-section in mm², percentages in %.
     A value whose default is 0 and whose ``zero_ok`` is True often means
-    "not given" (a resistor's power rating, a cell's capacity).
+    "not given" (a resistor's power rating, a cell's capacity).  ``prefixed``
+    is False for units that take no SI prefix (mm², %): show and read those
+    as plain numbers.
     """
 
     key: str
@@ -34,6 +36,7 @@ class ValueField:
     unit: str
     default: float
     zero_ok: bool = True
+    prefixed: bool = True
 
 
 @dataclass(frozen=True)
@@ -102,7 +105,7 @@ KINDS: dict[str, KindSpec] = {
         "resistor", "Resistor", "R", TWO,
         (ValueField("resistance", "Resistance", "Ω", 1000.0, zero_ok=False),),
         ratings=(ValueField("power_rating", "Power rating (0 = not given)", "W", 0.0),
-                 ValueField("tolerance", "Tolerance", "%", 5.0)),
+                 ValueField("tolerance", "Tolerance", "%", 5.0, prefixed=False)),
     ),
     "cell": KindSpec(
         # first terminal is plus, second is minus
@@ -148,10 +151,11 @@ KINDS: dict[str, KindSpec] = {
     "cable": KindSpec(
         "cable", "Cable run", "W", TWO,
         (ValueField("length", "Length", "m", 10.0, zero_ok=False),
-         ValueField("cross_section", "Cross-section", "mm²", 2.5, zero_ok=False)),
+         ValueField("cross_section", "Cross-section", "mm²", 2.5, zero_ok=False, prefixed=False)),
         ("both_conductors",),
         choices=(ChoiceField("material", "Conductor", MATERIALS, "copper"),),
-        ratings=(ValueField("drop_limit", "Drop limit", "%", DROP_LIMIT_SAFETY, zero_ok=False),),
+        ratings=(ValueField("drop_limit", "Drop limit", "%", DROP_LIMIT_SAFETY, zero_ok=False,
+                            prefixed=False),),
     ),
     "ground": KindSpec("ground", "Ground", "", ((0, 0),)),
 }
