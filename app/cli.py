@@ -3,8 +3,14 @@
     loopwright FILE                open a sketch in the window
     loopwright solve FILE [--json] solve a sketch and print the results
     loopwright shot FILE -o OUT    render the annotated sketch to PNG or SVG
+    loopwright equations FILE [--latex] [--mesh]
+                                   the KVL and KCL equations, with numbers and residuals
+    loopwright check FILE [--eq TEXT]...
+                                   hold typed equations or answers (or the sketch's saved
+                                   checks) against the circuit
 
-Exit status: 0 solved, 1 file error, 2 circuit error.
+Exit status: 0 solved (and every check right), 1 file error, 2 circuit error
+(a current tag that does not fit counts as one), 3 a check is wrong.
 """
 from __future__ import annotations
 
@@ -16,8 +22,8 @@ from solver import CircuitError, solve
 
 __all__ = ["main"]
 
-EXIT_OK, EXIT_FILE, EXIT_CIRCUIT = 0, 1, 2
-COMMANDS = ("solve", "shot")
+EXIT_OK, EXIT_FILE, EXIT_CIRCUIT, EXIT_WRONG = 0, 1, 2, 3
+COMMANDS = ("solve", "shot", "equations", "check")
 
 
 def _load(path: str):
@@ -55,6 +61,57 @@ def cmd_solve(args: argparse.Namespace) -> int:
     return EXIT_OK
 
 
+def _analysed_file(path: str):
+    """(the sketch in ``path``, its saved current tags, the analysis of its solution with those tags)."""
+    from .analysis import CurrentTag, TagError, analyse
+    from .sketch.netlist import to_circuit
+    sketch = _load(path)
+    net = to_circuit(sketch)
+    sol = solve(net.circuit, ground=net.ground)
+    tags = [CurrentTag(t.name, t.part, t.forward) for t in sketch.tags]
+    try:
+        return sketch, tags, analyse(sol, net.circuit, tags)
+    except TagError as exc:
+        raise CircuitError(exc.message, exc.parts) from None
+
+
+def cmd_equations(args: argparse.Namespace) -> int:
+    from .analysis.cli_support import equations_text
+    _, tags, a = _analysed_file(args.file)
+    forms = ("mesh",) if args.mesh else ("branch",)
+    print(equations_text(a.solution, a.circuit, tags, args.latex, forms))
+    return EXIT_OK
+
+
+def cmd_check(args: argparse.Namespace) -> int:
+    from .analysis.answers import run_check
+    sketch, _, a = _analysed_file(args.file)
+    typed = [(t, None, args.tolerance) for t in args.eq]
+    if not typed:
+        typed = [(c.text, c.kind, c.tolerance) for c in sketch.checks]
+    if not typed:
+        print("loopwright: nothing to check: give --eq \"…\", or save checks with the sketch.", file=sys.stderr)
+        return EXIT_FILE
+    wrong = 0
+    for text, kind, tol in typed:
+        outcome = run_check(a, text, kind, tol)
+        wrong += not outcome.ok
+        print(text)
+        print(outcome.report(text))
+        print()
+    return EXIT_WRONG if wrong else EXIT_OK
+
+
+def _fraction(text: str) -> float:
+    try:
+        value = float(text.rstrip("%")) / (100 if text.endswith("%") else 1)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a tolerance; write 0.01 or 1%") from None
+    if not 0 < value < 1:
+        raise argparse.ArgumentTypeError("the tolerance is between 0 and 1 (or 0% and 100%)")
+    return value
+
+
 def cmd_shot(args: argparse.Namespace) -> int:
     _load(args.file)  # file problems are reported before Qt starts
     from .ui.shot import render
@@ -84,6 +141,19 @@ def _parser() -> argparse.ArgumentParser:
     t.add_argument("file", help="a .lwsk sketch")
     t.add_argument("-o", "--output", required=True, help="picture to write (.png or .svg)")
     t.set_defaults(func=cmd_shot)
+    e = sub.add_parser("equations", help="print KVL per loop and KCL per junction, with numbers and residuals")
+    e.add_argument("file", help="a .lwsk sketch (its current tags name the currents)")
+    e.add_argument("--latex", action="store_true", help="one LaTeX line per equation")
+    e.add_argument("--mesh", action="store_true", help="the mesh-current form (loop-resistance rows)")
+    e.set_defaults(func=cmd_equations)
+    c = sub.add_parser("check", help="check typed equations or answers; exit status 3 when one is wrong")
+    c.add_argument("file", help="a .lwsk sketch (its current tags name the currents)")
+    c.add_argument("--eq", action="append", default=[], metavar="TEXT",
+                   help='an equation such as "B1 - Ia*R1 - (Ia - Ib)*R2 = 0", or answers such as '
+                        '"Ia = 12.3m, V(n2) = 4.1"; may be given more than once; without it the '
+                        "checks saved with the sketch are run")
+    c.add_argument("--tolerance", type=_fraction, default=0.01, help="for answers: 0.01 or 1%% (default)")
+    c.set_defaults(func=cmd_check)
     return p
 
 

@@ -11,6 +11,7 @@ equations and numeric answers.
 >>> check_equation(a, "B1 - I1*R1 = 0").ok
 True
 """
+from .answers import CheckOutcome, guess_kind, parse_answers, run_check
 from .branches import Branch, BranchSet, CurrentTag, TagError, find_branches
 from .checker import (DEFAULT_TOLERANCE, EquationCheck, Finding, ValueCheck, ValuesCheck, check_equation,
                       check_values)
@@ -26,4 +27,5 @@ __all__ = [
     "loop_equation", "merged_loop_equation", "trace_loop",
     "EquationCheck", "Finding", "ValueCheck", "ValuesCheck", "check_equation", "check_values",
     "DEFAULT_TOLERANCE", "ParseError", "parse_equation",
+    "CheckOutcome", "run_check", "parse_answers", "guess_kind",
 ]

@@ -13,8 +13,11 @@ from .equations import equations
 __all__ = ["equations_text", "check_equation_text"]
 
 
-def equations_text(sol: Solution, circuit: Circuit, tags: Iterable[CurrentTag] = (), latex: bool = False) -> str:
+def equations_text(sol: Solution, circuit: Circuit, tags: Iterable[CurrentTag] = (), latex: bool = False,
+                   forms: Iterable[str] = ("branch", "mesh")) -> str:
     """Branches, KVL per loop and KCL per junction (branch-current form), then the mesh-current form.
+
+    ``forms`` picks which forms to give (``"branch"``, ``"mesh"`` or both).
 
     Plain text shows each equation with symbols and with the solved numbers
     and residual; ``latex=True`` gives one LaTeX line per equation instead.
@@ -31,7 +34,10 @@ def equations_text(sol: Solution, circuit: Circuit, tags: Iterable[CurrentTag] =
             path = " → ".join(a.branches.label(n) for n in b.nodes)
             lines.append(f"  {b.current}{'' if b.tagged else ' (automatic name)'}: "
                          f"{', '.join(b.part_names)}  ({path})")
+    forms = tuple(forms)
     for form, heading in (("branch", "Branch-current form"), ("mesh", "Mesh-current form")):
+        if form not in forms:
+            continue
         eqs = equations(a, form)
         if not eqs:
             continue
