@@ -32,7 +32,8 @@ RTOL = 1e-9      # relative to the largest term of each equation (the brief)
 NOISE = 1e-15    # ... plus rounding noise: this fraction of the island's own scale
 
 _NICE = st.floats(min_value=-12, max_value=12).map(lambda e: 10.0 ** e)
-_WILD = st.sampled_from([5e-324, 1e-300, 1e-100, 1e-30, 1e30, 1e100, 1e300, 1.7e308])
+_WILD = st.sampled_from([5e-324, 1e-300, 1e-100, 1e-30, 1e-15, 1e-9, 1e15, 1e18, 1e18 * (1 + 1e-15),
+                         1e30, 1e300, 1.7e308])  # either side of the limits the circuit accepts
 VALUES = st.one_of(_NICE, _NICE, _NICE, _WILD, st.sampled_from([1.0, 1.0, 2.0]))
 KINDS = ["resistor", "resistor", "ideal_cell", "cell", "current_source", "wire", "wire",
          "closed_switch", "open_switch"]
@@ -40,12 +41,16 @@ KINDS = ["resistor", "resistor", "ideal_cell", "cell", "current_source", "wire",
 
 @st.composite
 def circuits(draw, max_parts: int = 14):
-    """A circuit of up to ``max_parts`` parts over up to five islands of points, and a ground (or None)."""
-    c = Circuit()
+    """Steps that build a circuit of up to ``max_parts`` parts over up to five islands, and a ground.
+
+    Returned as the calls to make, so that a value the circuit itself refuses
+    (beyond any real part) is checked like any other refusal.
+    """
     islands = [[f"n{i}_{k}" for k in range(draw(st.integers(2, 5)))] for i in range(draw(st.integers(1, 5)))]
     all_open = draw(st.booleans()) and draw(st.booleans())
     zero_sources = draw(st.booleans()) and draw(st.booleans())
     last: tuple[str, str] | None = None
+    steps: list[tuple[str, tuple, dict]] = []
     for count in range(1, draw(st.integers(1, max_parts)) + 1):
         pts = draw(st.sampled_from(islands))
         if last is not None and draw(st.integers(0, 4)) == 0:
@@ -55,46 +60,34 @@ def circuits(draw, max_parts: int = 14):
             b = draw(st.sampled_from([p for p in pts if p != a]))
         last = (a, b)
         kind = draw(st.sampled_from(KINDS))
-        emf = 0.0 if zero_sources else draw(VALUES)
+        source = 0.0 if zero_sources else draw(VALUES)
         if kind == "resistor":
-            c.resistor(f"R{count}", a, b, draw(VALUES))
+            steps.append(("resistor", (f"R{count}", a, b, draw(VALUES)), {}))
         elif kind == "ideal_cell":
-            c.cell(f"B{count}", plus=a, minus=b, emf=emf)
+            steps.append(("cell", (f"B{count}",), {"plus": a, "minus": b, "emf": source}))
         elif kind == "cell":
-            c.cell(f"B{count}", plus=a, minus=b, emf=emf, internal_resistance=draw(VALUES))
+            steps.append(("cell", (f"B{count}",), {"plus": a, "minus": b, "emf": source,
+                                                   "internal_resistance": draw(VALUES)}))
         elif kind == "current_source":
-            c.current_source(f"I{count}", a, b, 0.0 if zero_sources else draw(VALUES))
+            steps.append(("current_source", (f"I{count}", a, b, source), {}))
         elif kind == "wire":
-            c.wire(f"W{count}", a, b)
+            steps.append(("wire", (f"W{count}", a, b), {}))
         else:
-            c.switch(f"S{count}", a, b, closed=kind == "closed_switch" and not all_open)
+            steps.append(("switch", (f"S{count}", a, b), {"closed": kind == "closed_switch" and not all_open}))
+    used = list(dict.fromkeys(p for _, args, kw in steps
+                              for p in (*args[1:3], kw.get("plus"), kw.get("minus")) if isinstance(p, str)))
     if draw(st.booleans()):
         grid = st.integers(0, 3)  # a small grid: points often share a position
-        for p in c.points:
-            c.place(p, draw(grid), draw(grid))
-    ground = draw(st.one_of(st.none(), st.sampled_from(c.points)))
-    return c, ground
+        steps += [("place", (p, draw(grid), draw(grid)), {}) for p in used]
+    ground = draw(st.one_of(st.none(), st.sampled_from(used)))
+    return steps, ground
 
 
-def describe(c: Circuit, ground) -> str:
-    """A reproducer: the Python that builds the circuit."""
-    lines = ["c = Circuit()"]
-    for p in c.parts:
-        if p.kind == "resistor":
-            lines.append(f"c.resistor({p.name!r}, {p.a!r}, {p.b!r}, {p.resistance!r})")
-        elif p.kind == "cell":
-            lines.append(f"c.cell({p.name!r}, plus={p.a!r}, minus={p.b!r}, emf={p.emf!r}, "
-                         f"internal_resistance={p.resistance!r})")
-        elif p.kind == "current_source":
-            lines.append(f"c.current_source({p.name!r}, {p.a!r}, {p.b!r}, {p.current!r})")
-        elif p.kind == "wire":
-            lines.append(f"c.wire({p.name!r}, {p.a!r}, {p.b!r})")
-        else:
-            lines.append(f"c.switch({p.name!r}, {p.a!r}, {p.b!r}, closed={p.closed})")
-    for point, (x, y) in c.positions.items():
-        lines.append(f"c.place({point!r}, {x!r}, {y!r})")
-    lines.append(f"sol = solve(c, ground={ground!r})")
-    return "\n".join(lines)
+def describe(steps, ground) -> str:
+    """A reproducer: the Python that builds and solves the circuit."""
+    calls = [f"c.{method}({', '.join([*map(repr, args), *(f'{k}={v!r}' for k, v in kw.items())])})"
+             for method, args, kw in steps]
+    return "\n".join(["c = Circuit()", *calls, f"sol = solve(c, ground={ground!r})"])
 
 
 def _find(parent: dict[str, str], x: str) -> str:
@@ -190,20 +183,26 @@ def check_solution(c: Circuit, sol) -> None:
     assert _close(math.fsum(absorbed), size, floor), f"Tellegen: absorbed powers sum to {math.fsum(absorbed)}"
 
 
-def check_refusal(c: Circuit, err: CircuitError) -> None:
+def check_refusal(names: set[str], err: CircuitError) -> None:
     message = str(err)
     assert message.strip() and "\n" not in message, f"message {message!r}"
     assert err.parts, f"{type(err).__name__} names no parts: {message}"
-    names = {p.name for p in c.parts}
     assert set(err.parts) <= names, f"{type(err).__name__} names unknown parts {err.parts}"
 
 
-def run(c: Circuit, ground) -> None:
-    note(describe(c, ground))
+def run(steps, ground) -> None:
+    note(describe(steps, ground))
+    c = Circuit()
+    try:
+        for method, args, kw in steps:
+            getattr(c, method)(*args, **kw)
+    except CircuitError as err:  # a value no real part has, refused as it is added
+        check_refusal({args[0]}, err)
+        return
     try:
         sol = solve(c, ground=ground)
     except CircuitError as err:
-        check_refusal(c, err)
+        check_refusal({p.name for p in c.parts}, err)
         return
     check_solution(c, sol)
 
