@@ -244,3 +244,22 @@ def test_every_figure_is_finite_and_the_disclaimer_says_what_it_must():
 def test_meters_can_be_skipped():
     s = divider(1e6, 1e6, meter=part("voltmeter", "PV1"))
     assert "meter_reading" not in kinds(cautions(s, meters=False))
+
+
+def test_solve_json_carries_the_demo_cautions_with_part_and_figures(capsys):
+    import json
+    from pathlib import Path
+
+    from app.cli import main
+    demo = Path(__file__).resolve().parents[1] / "demo_circuits" / "market_stall_lamps.lwsk"
+    assert main(["solve", str(demo), "--json"]) == 0
+    warnings = json.loads(capsys.readouterr().out)["warnings"]
+    drop = next(w for w in warnings if w["kind"] == "cable_drop")
+    assert drop["part"] == "W1" and drop["severity"] == "warning" and drop["parts"] == ["W1"]
+    # by hand from the demo's values: IEC 60028 copper 2 × 8 m / 58 / 0.75 mm², lamps of
+    # 12²/10 = 14.4 Ω in parallel with each other and the 10 MΩ meter, pack 12.8 V with 0.02 Ω
+    rc = 16 / 58 / 0.75
+    load = 1 / (2 / 14.4 + 1 / 10e6)
+    i = 12.8 / (0.02 + rc + load)
+    assert drop["figures"]["drop"] == pytest.approx(i * rc, rel=1e-9)
+    assert drop["figures"]["percent"] == pytest.approx(100 * i * rc / (12.8 - 0.02 * i), rel=1e-9)
