@@ -164,6 +164,8 @@ def test_current_source_between_islands():
     (lambda c: c.cell("R1", plus="a", minus="g", emf=9.0, internal_resistance=float("nan")), ["R1", "internal resistance"]),
     (lambda c: c.current_source("R1", "a", "g", float("nan")), ["R1", "current"]),
     (lambda c: c.current_source("R1", "a", "g", float("inf")), ["R1", "current"]),
+    (lambda c: c.resistor("R1", "a", "g", 1e300), ["R1", "resistance"]),
+    (lambda c: c.resistor("R1", "a", "g", 1e-300), ["R1", "resistance"]),
 ])
 def test_bad_values_are_refused(add, words):
     def build(c):
