@@ -14,7 +14,7 @@ from PySide6.QtGui import QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF
 from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
 
 from ..units import format_value
-from .items import Z_MARK, Z_NOTE, PartItem, _paint_warning_sign, too_small
+from .items import CACHE, Z_MARK, Z_NOTE, PartItem, _paint_warning_sign, too_small
 from .theme import current_theme, small_font
 
 __all__ = ["CurrentMark", "DropMark", "PotentialTag", "LoopMark", "FaultNote", "LAYERS"]
@@ -59,6 +59,7 @@ class _PartMark(QGraphicsItem):
     def __init__(self, parent: PartItem) -> None:
         super().__init__(parent)
         self.setZValue(Z_MARK)
+        self.setCacheMode(CACHE)
         self.value: float | None = None
         self.text = ""
         self._bounds = QRectF()
@@ -197,6 +198,7 @@ class PotentialTag(QGraphicsItem):
     def __init__(self) -> None:
         super().__init__()
         self.setZValue(Z_MARK)
+        self.setCacheMode(CACHE)
         self.text = ""
         self.active = False
         self._rect = QRectF()
@@ -255,6 +257,7 @@ class LoopMark(QGraphicsItem):
     def __init__(self) -> None:
         super().__init__()
         self.setZValue(Z_MARK)
+        self.setCacheMode(CACHE)
         self.clockwise = True
         self.text = ""
         self.active = False

@@ -18,10 +18,15 @@ from .symbols import IEC, body_centre, paint_symbol, symbol_outline
 from .theme import GRID, current_theme, label_font
 
 __all__ = ["too_small", "PartItem", "WireItem", "JunctionDot", "LooseEnd", "RubberWire", "GridCursor",
-           "value_text", "to_scene", "Z_WIRE", "Z_PART", "Z_MARK", "Z_NOTE"]
+           "value_text", "to_scene", "CACHE", "Z_WIRE", "Z_PART", "Z_MARK", "Z_NOTE"]
 
 Z_WIRE, Z_PART, Z_DOT, Z_MARK, Z_NOTE, Z_TOOL = 1.0, 2.0, 3.0, 4.0, 6.0, 8.0
 INK_WIDTH = 1.7
+
+# Items of the drawing keep a picture of themselves at screen resolution, so a repaint
+# of the canvas copies pixels for everything an edit did not change (Qt repaints an item
+# only after its update()). A change of scheme must therefore update every item.
+CACHE = QGraphicsItem.CacheMode.DeviceCoordinateCache
 
 
 TEXT_LOD = 0.45  # below this scale text is under ~5 px tall: not drawn
@@ -74,6 +79,7 @@ class PartItem(QGraphicsItem):
         self._fm = QFontMetricsF(label_font())
         if not ghost:
             self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemIsSelectable, True)
+            self.setCacheMode(CACHE)
         self.setZValue(Z_TOOL if ghost else Z_PART)
         self.setAcceptHoverEvents(False)
 
@@ -231,6 +237,7 @@ class WireItem(QGraphicsItem):
         super().__init__()
         self.index = index
         self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemIsSelectable, True)
+        self.setCacheMode(CACHE)
         self.setZValue(Z_WIRE)
         self.wire = wire
         self._layout()
@@ -278,6 +285,7 @@ class JunctionDot(QGraphicsItem):
     def __init__(self) -> None:
         super().__init__()
         self.setZValue(Z_DOT)
+        self.setCacheMode(CACHE)
 
     def boundingRect(self) -> QRectF:
         return QRectF(-self.R - 1, -self.R - 1, 2 * self.R + 2, 2 * self.R + 2)
@@ -303,6 +311,7 @@ class LooseEnd(QGraphicsItem):
     def __init__(self) -> None:
         super().__init__()
         self.setZValue(Z_DOT)
+        self.setCacheMode(CACHE)
         self.setToolTip("Not connected")
 
     def boundingRect(self) -> QRectF:

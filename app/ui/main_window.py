@@ -391,8 +391,8 @@ class MainWindow(QMainWindow):
         self._apply_scheme(key)
         for tool, a in self.tool_actions.items():
             a.setIcon(tool_icon(tool, self.style_name))
-        self.scene.update()
-        self.view.viewport().update()
+        self.scene.refresh_looks()
+        self.view.resetCachedContent()
 
     def edit_value_inline(self, name: str) -> None:
         """Open the small value editor over the part on the canvas (switches toggle instead)."""

@@ -181,6 +181,11 @@ class SketchScene(QGraphicsScene):
         for item in self.part_items.values():
             item.set_style(style)
 
+    def refresh_looks(self) -> None:
+        """Repaint every item afresh (after a change of scheme: items keep pictures of themselves)."""
+        for item in self.items():
+            item.update()
+
     def set_layer(self, layer: str, on: bool) -> None:
         """Show or hide one layer of annotations."""
         self.layers[layer] = on

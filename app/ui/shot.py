@@ -3,11 +3,13 @@ from __future__ import annotations
 
 import os
 import sys
+from collections.abc import Iterator
+from contextlib import contextmanager
 from pathlib import Path
 
 from PySide6.QtCore import QRectF, QSize, Qt
 from PySide6.QtGui import QImage, QPainter
-from PySide6.QtWidgets import QApplication
+from PySide6.QtWidgets import QApplication, QGraphicsItem
 
 from ..sketch.fileio import load_sketch
 from .scene import SketchScene
@@ -31,6 +33,21 @@ def ensure_app() -> QApplication:
     return app  # type: ignore[return-value]
 
 
+@contextmanager
+def _drawn_afresh(scene: SketchScene) -> Iterator[None]:
+    """Items paint themselves while the picture is made, not their cached screen pixels,
+    so an SVG holds lines and text and a PNG is drawn at its own resolution."""
+    items = scene.items()
+    modes = [i.cacheMode() for i in items]
+    for i in items:
+        i.setCacheMode(QGraphicsItem.CacheMode.NoCache)
+    try:
+        yield
+    finally:
+        for i, mode in zip(items, modes):
+            i.setCacheMode(mode)
+
+
 def render_scene(scene: SketchScene, path_out: str | os.PathLike[str], scale: float = 2.0) -> None:
     """Write everything drawn in ``scene`` to a PNG or SVG file, on the scheme's paper colour."""
     out = Path(path_out)
@@ -47,7 +64,9 @@ def render_scene(scene: SketchScene, path_out: str | os.PathLike[str], scale: fl
         image.fill(paper)
         painter = QPainter(image)
         painter.setRenderHints(QPainter.RenderHint.Antialiasing | QPainter.RenderHint.TextAntialiasing)
-        scene.render(painter, QRectF(0, 0, image.width(), image.height()), rect, Qt.AspectRatioMode.KeepAspectRatio)
+        with _drawn_afresh(scene):
+            scene.render(painter, QRectF(0, 0, image.width(), image.height()), rect,
+                         Qt.AspectRatioMode.KeepAspectRatio)
         painter.end()
         if not image.save(str(out)):
             raise OSError(f"Could not write the picture {out}.")
@@ -61,7 +80,8 @@ def render_scene(scene: SketchScene, path_out: str | os.PathLike[str], scale: fl
     gen.setDescription("Sketch with its mesh-current solution")
     painter = QPainter(gen)
     painter.fillRect(QRectF(0, 0, rect.width(), rect.height()), paper)
-    scene.render(painter, QRectF(0, 0, rect.width(), rect.height()), rect, Qt.AspectRatioMode.KeepAspectRatio)
+    with _drawn_afresh(scene):
+        scene.render(painter, QRectF(0, 0, rect.width(), rect.height()), rect, Qt.AspectRatioMode.KeepAspectRatio)
     painter.end()
 
 
