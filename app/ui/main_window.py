@@ -17,6 +17,7 @@ from ..sketch.kinds import KINDS
 from ..sketch.model import Sketch
 from .annotations import LAYERS
 from .editor import FRAGMENT_MIME, Editor
+from .hand_analysis import HandAnalysis
 from .icons import tool_icon
 from .properties import InlineValueEditor, PartPanel
 from .readings import ReadingsModel, ReadingsView
@@ -90,6 +91,7 @@ class MainWindow(QMainWindow):
         self._build_actions()
         self._build_palette()
         self._build_docks()
+        self.hand = HandAnalysis(self)  # Equations and Check panels, current tags, traced loops
         self._build_menus()
         self.view.modeChanged.connect(self._mode_changed)
         self.view.editRequested.connect(self.edit_value_inline)
@@ -245,6 +247,11 @@ class MainWindow(QMainWindow):
         v.addSeparator()
         v.addAction(self.readings_dock.toggleViewAction())
         v.addAction(self.part_dock.toggleViewAction())
+        v.addAction(self.hand.equations_dock.toggleViewAction())
+        v.addAction(self.hand.check_dock.toggleViewAction())
+        an = mb.addMenu("&Analysis")
+        for a in self.hand.menu_actions():
+            an.addSeparator() if a is None else an.addAction(a)
 
     # -- the document ------------------------------------------------------------------
     def set_document(self, sketch: Sketch, path: Path | None) -> None:
@@ -275,6 +282,7 @@ class MainWindow(QMainWindow):
         self.act_redo.setEnabled(False)
         self.view.set_editor(self.editor)
         self.part_panel.set_editor(self.editor)
+        self.hand.attach()
         self.setWindowModified(False)
         self._update_title()
         self._document_changed()
@@ -300,6 +308,7 @@ class MainWindow(QMainWindow):
     def _document_changed(self) -> None:
         self.readings_model.set_parts(self.sketch)
         self.solver.request()
+        self.hand.document_changed()
         sel = self.scene.selected_parts()
         self.part_panel.show_part(sel[0] if len(sel) == 1 else None)
 
