@@ -13,6 +13,7 @@ import pytest
 from hypothesis import HealthCheck, given, note, settings
 from hypothesis import strategies as st
 
+from app.sketch.fileio import SketchFileError, loads_sketch
 from lwsk_mutations import BASES, MUTATIONS, mutate, verdict
 
 CASES = st.tuples(st.sampled_from(sorted(MUTATIONS)), st.randoms(use_true_random=False))
@@ -35,7 +36,6 @@ def test_the_good_bases_load():
 def test_every_mutation_damages_some_files(name):
     # a mutation that never makes a refused file would test nothing
     rng = random.Random(6)
-    from app.sketch.fileio import SketchFileError, loads_sketch
     refused = 0
     for _ in range(30):
         try:
