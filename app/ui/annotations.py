@@ -50,18 +50,46 @@ def _align(o: PartItem) -> int:
     return int(h | Qt.AlignmentFlag.AlignVCenter)
 
 
+_SLOTS: dict[str, float] = {}
+
+
+def _slot_width(unit: str) -> float:
+    """The widest text ``format_value`` writes for a value in ``unit`` within the prefixes p…T."""
+    w = _SLOTS.get(unit)
+    if w is None:
+        fm = _fm()
+        w = max(fm.horizontalAdvance(f"{n} {p}{unit}") for n in ("888", "88.8", "8.88")
+                for p in ("", "p", "n", "µ", "m", "k", "M", "G", "T"))
+        _SLOTS[unit] = w
+    return w
+
+
+def _fits_slot(value: float) -> bool:
+    """True when the text of ``value`` is a mantissa and an SI prefix (no written-out exponent)."""
+    v = abs(value)
+    return v == 0 or 1e-12 <= v < 1e15
+
+
 class _PartMark(QGraphicsItem):
-    """A mark that belongs to a part and lays itself out beside it."""
+    """A mark that belongs to a part and lays itself out beside it.
+
+    Its box is the room the widest ordinary text needs, so a new value only
+    asks for a repaint: the text is written when the mark is painted (or read),
+    and a mark scrolled out of sight or too small to read costs no formatting.
+    """
 
     LINE = 0
     ROOM = 0  # space kept beside the text for an arrow on upright parts
+    UNIT = ""
 
     def __init__(self, parent: PartItem) -> None:
         super().__init__(parent)
         self.setZValue(Z_MARK)
         self.setCacheMode(CACHE)
         self.value: float | None = None
-        self.text = ""
+        self._text = ""
+        self._text_of: float | None = None  # the value ``_text`` was written for
+        self._text_rect: QRectF | None = None
         self._bounds = QRectF()
         self.setVisible(False)
 
@@ -69,19 +97,41 @@ class _PartMark(QGraphicsItem):
     def owner(self) -> PartItem:
         return self.parentItem()  # type: ignore[return-value]
 
+    @property
+    def text(self) -> str:
+        """The value as shown ('' when there is none)."""
+        if self.value is None:
+            return ""
+        if self._text_of != self.value:
+            self._text = self._format(self.value)
+            self._text_of = self.value
+            self._text_rect = None
+        return self._text
+
+    @property
+    def text_rect(self) -> QRectF:
+        """Where the text is drawn, in the owner's coordinates."""
+        text = self.text
+        if self._text_rect is None:
+            o = self.owner
+            w = _fm().horizontalAdvance(text) + 2 + (0 if o.horizontal else self.ROOM)
+            self._text_rect = o.line_rect(self.LINE, w)
+        return self._text_rect
+
     def set_value(self, value: float | None) -> None:
         """Show ``value`` (None hides the mark: no valid result)."""
         if value is None:
             self.value = None
             self.setVisible(False)
             return
-        text = self._format(value)
-        turned = (value < 0) != (self.value is not None and self.value < 0) or (value == 0) != (self.value == 0)
-        was_shown = self.value is not None
-        self.value = value
-        if text != self.text or turned or not was_shown:
-            self.text = text
-            self.relayout()
+        if value != self.value:
+            was_shown = self.value is not None
+            self.value = value
+            self._text_rect = None
+            if was_shown and _fits_slot(value):
+                self.update()
+            else:
+                self.relayout()
         self.setVisible(self._layer_on)
 
     _layer_on = True
@@ -91,21 +141,31 @@ class _PartMark(QGraphicsItem):
         self.setVisible(on and self.value is not None)
 
     def _format(self, value: float) -> str:
-        raise NotImplementedError
+        return format_value(abs(value), self.UNIT)
 
     def relayout(self) -> None:
+        """Lay the box out again (the owner moved or turned, or an unusual value came)."""
         self.prepareGeometryChange()
         o = self.owner
-        fm = _fm()
-        w = fm.horizontalAdvance(self.text) + 2 + (0 if o.horizontal else self.ROOM)
-        h = fm.height()
-        out = o.outline
-        self.text_rect = o.line_rect(self.LINE, w)
-        self._bounds = self.text_rect.united(out.adjusted(-16, -16, 16, 16)) if self.value is not None else QRectF()
+        self._text_rect = None
+        if self.value is None:
+            self._bounds = QRectF()
+        else:
+            w = _slot_width(self.UNIT) + 2 + (0 if o.horizontal else self.ROOM)
+            slot = o.line_rect(self.LINE, w).united(self.text_rect)
+            if o.horizontal:
+                slot.adjust(-20, 0, 0, 0)  # the arrow drawn left of the text
+            self._bounds = slot.united(o.outline.adjusted(-16, -16, 16, 16))
         self.update()
 
     def boundingRect(self) -> QRectF:
         return self._bounds
+
+    def drawn_rect(self) -> QRectF:
+        """What the mark covers with its present text (its box also holds room for longer ones)."""
+        if self.value is None:
+            return QRectF()
+        return self.text_rect.united(self.owner.outline.adjusted(-16, -16, 16, 16))
 
     def shape(self) -> QPainterPath:
         path = QPainterPath()
@@ -118,9 +178,7 @@ class CurrentMark(_PartMark):
 
     LINE = 2
     ROOM = 14
-
-    def _format(self, value: float) -> str:
-        return format_value(abs(value), "A")
+    UNIT = "A"
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
         if self.value is None or too_small(painter):
@@ -160,9 +218,7 @@ class DropMark(_PartMark):
     """The drop across the part, with + at its higher terminal and − at its lower."""
 
     LINE = 3
-
-    def _format(self, value: float) -> str:
-        return format_value(abs(value), "V")
+    UNIT = "V"
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
         if self.value is None or too_small(painter):

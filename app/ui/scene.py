@@ -351,5 +351,6 @@ class SketchScene(QGraphicsScene):
         rect = QRectF()
         for item in self.items():
             if item.isVisible():
-                rect = rect.united(item.sceneBoundingRect())
+                drawn = getattr(item, "drawn_rect", None)
+                rect = rect.united(item.mapRectToScene(drawn()) if drawn else item.sceneBoundingRect())
         return rect

@@ -52,13 +52,15 @@ def _grid(name: str) -> GridPoint:
     return int(x), int(y)
 
 
-def _loop_centre(loop, circuit) -> tuple[float, float] | None:
-    """A point inside the loop's window: its area centroid, else the mean of its corners."""
-    pos = circuit.positions
+def _loop_centre(loop, ends: dict[str, tuple[str, str]],
+                 pos: dict[str, tuple[float, float]]) -> tuple[float, float] | None:
+    """A point inside the loop's window: its area centroid, else the mean of its corners.
+
+    ``ends`` maps part names to their (first, second) points, ``pos`` points to grid positions.
+    """
     pts: list[tuple[float, float]] = []
     for name, sign in loop.parts:
-        part = circuit.part(name)
-        a, b = (part.a, part.b) if sign > 0 else (part.b, part.a)
+        a, b = ends[name] if sign > 0 else ends[name][::-1]
         if a not in pos or b not in pos:
             return None
         for q in (pos[a], pos[b]):
@@ -106,13 +108,15 @@ def _from_netlist(generation: int, netlist: Netlist) -> Result:
         res.error_parts = tuple(p for p in e.parts if not p.startswith("~"))
         res.summary = "Not solved: " + e.message
         return res
-    for n in names:
-        i, v = sol.current(n), sol.voltage(n)
-        res.readings[n] = (i, v, sol.power(n))
+    # whole arrays at once: per-name lookups cost more than the solve on large sketches
+    shown = set(names)
+    res.readings = {n: r for n, r in zip(sol.parts, zip(sol.currents.tolist(), sol.voltages.tolist(),
+                                                        sol.powers.tolist())) if n in shown}
     refs = set(sol.references or ())
     if sol.ground:
         refs.add(sol.node_of(sol.ground))
     junctions = set(netlist.junctions)
+    grid_of = {name: p for p, name in netlist.point_at.items()}
     lo = hi = None
     for node, points in sol.nodes.items():
         v = sol.potential(points[0])
@@ -120,11 +124,13 @@ def _from_netlist(generation: int, netlist: Netlist) -> Result:
         hi = v if hi is None else max(hi, v)
         if node in refs:
             continue
-        grid = [_grid(p) for p in points]
+        grid = [grid_of.get(p) or _grid(p) for p in points]
         at = min(grid, key=lambda g: (g not in junctions, g[1], g[0]))
         res.potentials.append((at, v))
+    ends = {p.name: (p.a, p.b) for p in circuit.parts}
+    pos = circuit.positions
     for loop in sol.loops:
-        c = _loop_centre(loop, circuit)
+        c = _loop_centre(loop, ends, pos)
         if c is not None and math.isfinite(loop.current):
             res.loops.append((c, loop.name, loop.current, loop.orientation != "anticlockwise"))
     res.notes = [n.message for n in sol.notes]

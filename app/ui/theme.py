@@ -92,11 +92,20 @@ def set_theme(theme: Theme | None) -> None:
     _auto = None
 
 
+_FONTS: dict[int, QFont] = {}
+
+
 def label_font(pixels: int = 11) -> QFont:
-    """The font of designators and values, sized in scene units so pictures match the screen."""
-    f = QFont()
-    f.setFamilies(["DejaVu Sans", "Segoe UI", "Helvetica Neue", "Sans Serif"])
-    f.setPixelSize(pixels)
+    """The font of designators and values, sized in scene units so pictures match the screen.
+
+    Made once per size (items ask for it on every paint); change a copy, not the font returned.
+    """
+    f = _FONTS.get(pixels)
+    if f is None:
+        f = QFont()
+        f.setFamilies(["DejaVu Sans", "Segoe UI", "Helvetica Neue", "Sans Serif"])
+        f.setPixelSize(pixels)
+        _FONTS[pixels] = f
     return f
 
 
