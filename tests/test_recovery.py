@@ -128,9 +128,12 @@ def test_adopt_moves_the_copy_into_the_new_session(tmp_path):
 
 
 def test_discard_removes_a_copy_and_the_ended_sessions_lock(tmp_path):
-    crash_a_session(tmp_path, [("main", None, boat_sketch())])
+    session = crash_a_session(tmp_path, [("main", None, boat_sketch())])
+    half_written = tmp_path / f".{session}.main{COPY_SUFFIX}.k3x9_q.tmp"  # an autosave killed mid-way
+    half_written.write_text('{"format": "loopwr')
     store = RecoveryStore(tmp_path)
     (copy,) = store.recoverable().copies
+    assert not half_written.exists()
     assert len(os.listdir(tmp_path)) == 3  # the copy, the ended session's lock, ours
     store.discard(copy)
     assert store.recoverable().copies == []

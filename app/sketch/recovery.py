@@ -51,6 +51,7 @@ UNTITLED = "Untitled sketch"
 MAX_COPY_BYTES = 2 * MAX_BYTES + 65536   # the sketch text is escaped once inside the envelope
 _ID = re.compile(r"[A-Za-z0-9_-]{1,40}")
 _COPY_NAME = re.compile(rf"({_ID.pattern})\.({_ID.pattern}){re.escape(COPY_SUFFIX)}")
+_TEMPORARY = re.compile(rf"\.({_ID.pattern})\.{_ID.pattern}{re.escape(COPY_SUFFIX)}\..*\.tmp")  # see atomic.py
 _FIELDS = {"format": str, "version": int, "session": str, "document": str, "saved_at": str,
            "original_path": (str, type(None)), "title": str, "sketch": str}
 
@@ -326,9 +327,19 @@ class RecoveryStore:
         return full
 
     def _sweep(self) -> None:
-        """Remove lock files of ended sessions that have no copies left."""
+        """Remove lock files of ended sessions that have no copies left, and their half-written copies."""
         names = os.listdir(self.folder)
         with_copies = {m.group(1) for m in map(_COPY_NAME.fullmatch, names) if m}
+        ended: dict[str, bool] = {}
+        for name in names:
+            m = _TEMPORARY.fullmatch(name)
+            if m and m.group(1) != self.session:
+                session = m.group(1)
+                if session not in ended:
+                    ended[session] = not _session_alive(self._lock_path(session))
+                if ended[session]:
+                    with contextlib.suppress(FileNotFoundError):
+                        os.unlink(os.path.join(self.folder, name))
         for name in names:
             session = name[: -len(LOCK_SUFFIX)]
             if name.endswith(LOCK_SUFFIX) and session != self.session and session not in with_copies:
