@@ -102,8 +102,9 @@ def term_value(t: Term, value: Mapping[str, float]) -> float:
 
 def side_numeric(terms: tuple[Term, ...], value: Mapping[str, float], unit: Mapping[str, str]) -> str:
     """One side with the solved numbers in place of the names, in engineering notation."""
-    def num(n: str) -> str:
-        return format_value(value[n], unit.get(n, ""), 4)
+    def num(n: str) -> str:  # a negative value in brackets, so no "+ -14 mA"
+        text = format_value(value[n], unit.get(n, ""), 4)
+        return f"({text.replace('-', '−', 1)})" if value[n] < 0 else text
     return _side(terms, lambda t: _body(t, num, " × ", minus=" − ", plus=" + "), minus="−")
 
 

@@ -113,7 +113,9 @@ class Highlight(QGraphicsItem):
         self._rings = [QPointF(x * GRID, y * GRID) for x, y in rings]
         self._label = label
         pts = [QPointF(x * GRID, y * GRID) for s in list(segments) + list(thin) for x, y in s] + self._rings
-        if pts:
+        if self._rings:  # a junction: the label goes by its ring
+            self._label_at = self._rings[0] + QPointF(12, -12)
+        elif pts:
             top = min(pts, key=lambda p: (p.y(), p.x()))
             self._label_at = top + QPointF(6, -10)
         rect = self._path.boundingRect().united(self._thin.boundingRect())
