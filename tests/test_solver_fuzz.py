@@ -78,7 +78,7 @@ def circuits(draw, max_parts: int = 14):
     used = list(dict.fromkeys(p for _, args, kw in steps
                               for p in (*args[1:3], kw.get("plus"), kw.get("minus")) if isinstance(p, str)))
     if draw(st.booleans()):
-        grid = st.integers(0, 3)  # a small grid: points often share a position
+        grid = st.integers(0, draw(st.sampled_from([3, 12])))  # on a small grid points often share a position
         steps += [("place", (p, draw(grid), draw(grid)), {}) for p in used]
     ground = draw(st.one_of(st.none(), st.sampled_from(used)))
     return steps, ground
