@@ -75,6 +75,12 @@ def test_tags_on_the_canvas_then_a_right_and_a_wrong_equation_in_the_check_panel
     assert [t.part for t in win.sketch.tags] == ["B1", "R2"]
     qtbot.keyClick(win.view, Qt.Key.Key_Z, Qt.KeyboardModifier.ControlModifier)
     assert [t.part for t in win.sketch.tags] == ["R1", "R2"]
+    click(qtbot, win, "R2")
+    qtbot.keyClick(win.view, Qt.Key.Key_N, Qt.KeyboardModifier.ShiftModifier)  # flip: Ib counted upwards
+    assert win.sketch.tag_on("R2") == BranchTag("Ib", "R2", False)
+    assert win.hand.state.analysis.branches.named("Ib").value < 0  # the current really flows down
+    qtbot.keyClick(win.view, Qt.Key.Key_Z, Qt.KeyboardModifier.ControlModifier)
+    assert win.sketch.tag_on("R2") == BranchTag("Ib", "R2", True)
 
     # By hand: the drop across R2 (Ib down through it) equals the drops across R3 and R4, whose branch
     # carries what is left of Ia at the top junction (KCL): Ia - Ib.
