@@ -70,6 +70,11 @@ def _fits_slot(value: float) -> bool:
     return v == 0 or 1e-12 <= v < 1e15
 
 
+def _rounded(value: float) -> str:
+    """What decides a mark's text and arrow: sign and three significant figures (as ``format_value``)."""
+    return f"{value:.2e}"
+
+
 class _PartMark(QGraphicsItem):
     """A mark that belongs to a part and lays itself out beside it.
 
@@ -125,10 +130,15 @@ class _PartMark(QGraphicsItem):
             self.setVisible(False)
             return
         if value != self.value:
-            was_shown = self.value is not None
+            old = self.value
+            was_shown = old is not None
+            same_text = was_shown and _rounded(value) == _rounded(old)
             self.value = value
-            self._text_rect = None
-            if was_shown and _fits_slot(value):
+            if same_text:
+                if self._text_of == old:
+                    self._text_of = value  # the text and the arrow stay as they are
+            elif was_shown and _fits_slot(value):
+                self._text_rect = None
                 self.update()
             else:
                 self.relayout()
