@@ -44,8 +44,9 @@ def _painted(kind: str, style: str) -> QIcon:
 
 def tool_icon(name: str, style: str = IEC) -> QIcon:
     """The icon for a tool (``select``, ``wire``) or a part kind."""
-    stem = f"{name}-{style}" if name == "resistor" else name
-    path = ICON_DIR / f"{stem}.svg"
+    path = ICON_DIR / f"{name}-{style}.svg"  # kinds drawn differently in the two symbol styles
+    if not path.is_file():
+        path = ICON_DIR / f"{name}.svg"
     if path.is_file():
         from PySide6.QtCore import QByteArray
         from PySide6.QtSvg import QSvgRenderer

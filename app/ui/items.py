@@ -11,11 +11,10 @@ from PySide6.QtGui import (QBrush, QColor, QFontMetricsF, QPainter, QPainterPath
                            QPainterPathStroker, QPen, QPolygonF, QTransform)
 from PySide6.QtWidgets import QGraphicsItem, QStyle, QStyleOptionGraphicsItem, QWidget
 
-from ..sketch.kinds import kind_spec
 from ..sketch.model import PlacedPart, Wire
-from ..units import format_value
-from .symbols import IEC, body_centre, paint_symbol, symbol_outline
+from .symbols import IEC, body_centre, paint_part, symbol_outline
 from .theme import GRID, current_theme, label_font
+from .valuetext import value_line
 
 __all__ = ["too_small", "PartItem", "WireItem", "JunctionDot", "LooseEnd", "RubberWire", "GridCursor",
            "value_text", "to_scene", "CACHE", "Z_WIRE", "Z_PART", "Z_MARK", "Z_NOTE"]
@@ -43,19 +42,8 @@ def to_scene(p: tuple[int, int]) -> QPointF:
 
 
 def value_text(part: PlacedPart) -> str:
-    """The value line printed beside a part (``4.70 kΩ``, ``9.00 V  r 0.50 Ω``, ``open``)."""
-    if part.kind == "switch":
-        return "closed" if part.flag("closed") else "open"
-    spec = kind_spec(part.kind)
-    bits = []
-    for f in spec.fields:
-        v = part.value(f.key)
-        if f.key == "internal_resistance":
-            if v:
-                bits.append("r " + format_value(v, f.unit))
-        else:
-            bits.append(format_value(v, f.unit))
-    return "  ".join(bits)
+    """The value line printed beside a part (``4.70 kΩ``, ``9.00 V  r 0.50 Ω``, ``0.75 mm²``, ``open``)."""
+    return value_line(part)
 
 
 def ink_pen(color: QColor, width: float = INK_WIDTH) -> QPen:
@@ -202,7 +190,7 @@ class PartItem(QGraphicsItem):
         painter.setTransform(self.symbol_transform, True)
         painter.setPen(ink_pen(colour))
         painter.setBrush(Qt.BrushStyle.NoBrush)
-        paint_symbol(painter, self.part.kind, self.style, self.part.flag("closed"))
+        paint_part(painter, self.part, self.style)
         painter.restore()
         if self.lines and not too_small(painter):
             painter.setFont(label_font())

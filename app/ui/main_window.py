@@ -24,7 +24,7 @@ from .readings import ReadingsModel, ReadingsView
 from .scene import SketchScene
 from .shot import render_scene
 from .solve_worker import LiveSolver, Result
-from .symbols import IEC, IEEE, STYLES
+from .symbols import IEC, IEEE, STYLED_KINDS, STYLES
 from .theme import DARK, LIGHT, current_theme, set_theme
 from .view import SELECT, WIRE, CanvasView
 
@@ -40,6 +40,11 @@ PALETTE = [  # (tool, label, key)
     ("current_source", "Current source", "I"),
     ("switch", "Switch", "S"),
     ("ground", "Ground", "G"),
+    ("ammeter", "Ammeter", "A"),
+    ("voltmeter", "Voltmeter", "V"),
+    ("fuse", "Fuse", "U"),
+    ("lamp", "Lamp", "L"),
+    ("cable", "Cable run", "C"),
 ]
 
 
@@ -147,7 +152,7 @@ class MainWindow(QMainWindow):
                                        tip="Turn the part being placed or the selection; in the wire tool, swap the bend")
         self.act_mirror = self._action("&Mirror", lambda: self.view.turn(True), "F")
         self.act_edit_value = self._action("Edit &Value…", self._edit_selected_value, "F2")
-        self.act_toggle = self._action("Open or Close Switch", self._toggle_switch, "T")
+        self.act_toggle = self._action("Open or Close Switch, Blow or Renew Fuse", self._toggle_switch, "T")
         self.act_zoom_in = self._action("Zoom &In", lambda: self.view.zoom_by(1.25), K.ZoomIn)
         self.act_zoom_out = self._action("Zoom &Out", lambda: self.view.zoom_by(0.8), K.ZoomOut)
         self.act_zoom_fit = self._action("Zoom to &Fit", self.view.zoom_fit, "Home")
@@ -178,6 +183,8 @@ class MainWindow(QMainWindow):
             if isinstance(button, QToolButton):
                 button.setMinimumWidth(86)
             if tool == WIRE:
+                bar.addSeparator()
+            if tool == "ground":  # the next are the bench parts
                 bar.addSeparator()
         self.palette_bar = bar
         self.addToolBar(Qt.ToolBarArea.LeftToolBarArea, bar)
@@ -386,7 +393,8 @@ class MainWindow(QMainWindow):
         self.style_name = style
         self.settings.setValue("symbols", style)
         self.scene.set_style(style)
-        self.tool_actions["resistor"].setIcon(tool_icon("resistor", style))
+        for kind in STYLED_KINDS:
+            self.tool_actions[kind].setIcon(tool_icon(kind, style))
 
     def _apply_scheme(self, key: str) -> None:
         set_theme({"light": LIGHT, "dark": DARK}.get(key))
@@ -439,6 +447,8 @@ class MainWindow(QMainWindow):
             p = self.sketch.part(n)
             if p.kind == "switch":
                 self.editor.set_flag(n, "closed", not p.flag("closed"))
+            elif p.kind == "fuse":
+                self.editor.set_flag(n, "blown", not p.flag("blown"))
 
     def copy(self) -> None:
         if self.scene.selected_parts() or self.scene.selected_wires():
