@@ -33,6 +33,7 @@ __all__ = ["solve", "DENSE_LIMIT", "KVL_TOLERANCE"]
 
 DENSE_LIMIT = 400       # unknowns up to which the dense solver is used
 KVL_TOLERANCE = 1e-9    # largest relative KVL residual accepted
+ROUNDING = 1e-15        # residual allowed per unit of equation terms: double-precision noise
 TINY = 1e-300           # results below this are rounding residue and shown as zero
 WIDE_SPREAD = 1e6       # resistance ratio above which fundamental loops follow the least-resistance tree
 
@@ -163,7 +164,7 @@ def _branch_solution(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.nda
     v_br = topo.br_r * i_br + topo.br_e
     v_br[cs] = w
     size = np.abs(topo.br_r * i_br) + np.abs(topo.br_e) + np.abs(np.where(topo.br_cs, v_br, 0.0))
-    _check_kvl(loops, v_br, size, topo)
+    _check_kvl(loops, j, v_br, size, topo)
     return j, i_br, v_br
 
 
@@ -224,28 +225,31 @@ def _extreme_parts(topo: Topology) -> list[str]:
     return [topo.part_names[topo.branch_parts[k]] for k in dict.fromkeys(picks)]
 
 
-def _check_kvl(loops: LoopSet, v_br: np.ndarray, size: np.ndarray, topo: Topology) -> None:
+def _check_kvl(loops: LoopSet, j: np.ndarray, v_br: np.ndarray, size: np.ndarray, topo: Topology) -> None:
     """Raise :class:`IllConditionedError` if any loop's KVL residual is above tolerance.
 
-    The residual is measured against ``size``, the magnitude of each branch's
-    terms (|R·i|, |E|, a source's voltage) as a person adds them round the
-    loop, with a floor of 1e-6 of the largest term in the circuit (so residuals
-    at rounding level, 1e-15 of it, always pass) so that a
-    loop carrying (almost) nothing is not judged by rounding noise alone.
+    The residual must be within ``KVL_TOLERANCE`` of the loop's terms as a
+    person adds them (``size``: |R·i|, |E|, a source's voltage), give or take
+    rounding: 1e-15 of the loop's equation terms (each resistance times the
+    loop currents through it, and the largest term in the circuit), which is
+    what double precision can resolve when loop currents cancel in a branch.
     """
     if loops.n_loops == 0:
         return
     res = np.abs(loops.B @ v_br)
-    floor = 1e-6 * float(size.max(initial=0.0))
-    scale = abs(loops.B) @ size + floor
-    rel = res / np.maximum(scale, 1e-300)
-    worst = int(np.argmax(rel))
-    if rel[worst] > KVL_TOLERANCE and res[worst] > 1e-300:
+    absB = abs(loops.B)
+    through = absB.T @ np.abs(j)
+    equation = absB @ (topo.br_r * through) + float(size.max(initial=0.0))
+    scale = absB @ size
+    allowed = KVL_TOLERANCE * scale + ROUNDING * equation
+    worst = int(np.argmax(res - allowed))
+    if res[worst] > allowed[worst]:
         row = loops.B.getrow(worst)
         names = [topo.part_names[topo.branch_parts[b]] for b in row.indices]
+        rel = res[worst] / max(scale[worst], 1e-300)
         raise IllConditionedError(
             "The loop equations are too ill-conditioned to trust: around one loop the "
-            f"voltages fail to add up to zero by {rel[worst]:.1e} of their size. The values "
+            f"voltages fail to add up to zero by {rel:.1e} of their size. The values "
             "span too wide a range; check for extreme resistances.", names)
 
 
