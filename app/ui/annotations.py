@@ -316,29 +316,64 @@ class PotentialTag(QGraphicsItem):
 
 
 class LoopMark(QGraphicsItem):
-    """A circulating arrow inside a loop's window, with the loop's name and current."""
+    """A circulating arrow inside a loop's window, with the loop's name and current.
+
+    The text goes below, above, right or left of the arrow (``side``); where
+    the window has no room for it, ``compact`` shows the name alone and the
+    current in the tooltip, so the mark never covers a part's own text.
+    """
 
     R = 9.0
+    SIDES = ("below", "above", "right", "left")
 
     def __init__(self) -> None:
         super().__init__()
         self.setZValue(Z_MARK)
         self.setCacheMode(CACHE)
         self.clockwise = True
+        self.name = ""
+        self.full_text = ""
         self.text = ""
         self.active = False
+        self.home = QPointF()      # the window's centre, where the mark goes when there is room
+        self.outline = QPolygonF()  # the window, in scene coordinates
+        self.side = "below"
+        self.compact = False
         self._text_rect = QRectF()
 
     def set_loop(self, name: str, current: float, clockwise: bool) -> None:
         text = f"{name} {format_value(current, 'A')}"
-        if text == self.text and clockwise == self.clockwise:
+        if text == self.full_text and clockwise == self.clockwise:
             return
-        self.prepareGeometryChange()
         self.clockwise = clockwise
-        self.text = text
+        self.name = name
+        self.full_text = text
+        self.setToolTip(f"Loop current {text}")
+        self.set_layout(self.side, self.compact)
+
+    def text_rect_at(self, side: str, compact: bool) -> QRectF:
+        """The text's box for a layout, around the arrow at the origin."""
         fm = _fm()
-        w = fm.horizontalAdvance(self.text) + 4
-        self._text_rect = QRectF(-w / 2, self.R + 4, w, fm.height())
+        text = self.name if compact else self.full_text
+        w, h, r = fm.horizontalAdvance(text) + 4, fm.height(), self.R + 4
+        if side == "below":
+            return QRectF(-w / 2, r, w, h)
+        if side == "above":
+            return QRectF(-w / 2, -r - h, w, h)
+        if side == "right":
+            return QRectF(r, -h / 2, w, h)
+        return QRectF(-r - w, -h / 2, w, h)
+
+    def rect_at(self, side: str, compact: bool) -> QRectF:
+        """Everything the mark covers in a layout."""
+        r = self.R + 4
+        return QRectF(-r, -r, 2 * r, 2 * r).united(self.text_rect_at(side, compact))
+
+    def set_layout(self, side: str, compact: bool) -> None:
+        self.prepareGeometryChange()
+        self.side, self.compact = side, compact
+        self.text = self.name if compact else self.full_text
+        self._text_rect = self.text_rect_at(side, compact)
         self.update()
 
     def boundingRect(self) -> QRectF:

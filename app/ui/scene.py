@@ -10,7 +10,8 @@ from __future__ import annotations
 from collections.abc import Iterable, Iterator
 from contextlib import contextmanager
 
-from PySide6.QtCore import QRectF, Signal
+from PySide6.QtCore import QPointF, QRectF, Qt, Signal
+from PySide6.QtGui import QPolygonF
 from PySide6.QtWidgets import QGraphicsScene
 
 from ..sketch.model import Sketch
@@ -224,11 +225,13 @@ class SketchScene(QGraphicsScene):
 
     def show_solution(self, readings: dict[str, tuple[float, float]],
                       potentials: list[tuple[tuple[int, int], float]],
-                      loops: list[tuple[tuple[float, float], str, float, bool]]) -> None:
+                      loops: list[tuple[tuple[float, float], str, float, bool]],
+                      outlines: list[list[tuple[float, float]]] | None = None) -> None:
         """Lay a solution on the drawing.
 
         ``readings`` maps part names to (current, drop); ``potentials`` are
-        (grid point, volts) tags; ``loops`` are (grid centre, name, current, clockwise).
+        (grid point, volts) tags; ``loops`` are (grid centre, name, current, clockwise),
+        ``outlines`` the corners of each loop's window (grid units), where its mark may go.
         """
         self._clear_fault()
         self.solved = True
@@ -238,8 +241,15 @@ class SketchScene(QGraphicsScene):
             r = readings.get(name)
             item.current_mark.set_value(None if r is None else r[0])
             item.drop_mark.set_value(None if r is None else r[1])
-        for item, (c, name, i, cw) in zip(self._pool(self._loops, LoopMark, len(loops)), loops):
-            item.setPos(c[0] * GRID, c[1] * GRID)
+        marks = self._pool(self._loops, LoopMark, len(loops))
+        new_homes = []
+        for k, (item, (c, name, i, cw)) in enumerate(zip(marks, loops)):
+            home = QPointF(c[0] * GRID, c[1] * GRID)
+            outline = QPolygonF([QPointF(x * GRID, y * GRID) for x, y in outlines[k]]) if outlines else QPolygonF()
+            if home != item.home or outline != item.outline or not item.active:
+                item.home, item.outline = home, outline
+                item.setPos(home)
+                new_homes.append(item)
             item.set_loop(name, i, cw)
             item.active = True
             item.setVisible(self.layers["loops"])
@@ -256,6 +266,9 @@ class SketchScene(QGraphicsScene):
         if len(tags) <= self.PLACE_TAGS_UP_TO:
             for item in moved:  # tags that stay put keep their corner
                 self._place_tag(item)
+        if len(marks) <= self.PLACE_TAGS_UP_TO:
+            for item in new_homes:  # marks of unchanged windows stay where they are
+                self._place_loop(item)
 
     PLACE_TAGS_UP_TO = 400
 
@@ -277,6 +290,48 @@ class SketchScene(QGraphicsScene):
                 if cost == 0:
                     break
         tag.set_corner(best)
+
+    LOOP_STEPS = (0.0, 6.0, -6.0, 12.0, -12.0, 18.0, -18.0, 24.0, -24.0, 30.0, -30.0)
+
+    def _overlap(self, rect: QRectF, me) -> float:
+        """Area of ``rect`` (scene) over texts, symbols, wires and other marks."""
+        cost = 0.0
+        for i in self.items(rect):
+            if i is me or not i.isVisible():
+                continue
+            covers = [i.sceneBoundingRect().adjusted(5, 5, -5, -5)] if isinstance(i, WireItem) else self._covers(i)
+            for r in covers:
+                x = r.intersected(rect)
+                if not x.isEmpty():
+                    cost += x.width() * x.height()
+        return cost
+
+    def _place_loop(self, mark: LoopMark) -> None:
+        """Put a loop mark where it covers nothing inside its window: near the centre, text on
+        any side; failing that the name alone (current in its tooltip); failing that, least covered."""
+        best, best_cost = None, None
+        offsets = sorted(((dx, dy) for dx in self.LOOP_STEPS for dy in self.LOOP_STEPS),
+                         key=lambda d: d[0] * d[0] + d[1] * d[1])
+        for compact in (False, True):
+            for dx, dy in offsets:
+                at = mark.home + QPointF(dx, dy)
+                if not mark.outline.isEmpty() and not mark.outline.containsPoint(at, Qt.FillRule.OddEvenFill):
+                    continue
+                for side in LoopMark.SIDES:
+                    rect = mark.rect_at(side, compact).translated(at)
+                    if not mark.outline.isEmpty() and not mark.outline.boundingRect().contains(rect):
+                        continue
+                    cost = self._overlap(rect, mark)
+                    if best_cost is None or cost < best_cost:
+                        best, best_cost = (at, side, compact), cost
+                    if cost == 0:
+                        mark.setPos(at)
+                        mark.set_layout(side, compact)
+                        return
+        if best is None:
+            best = (mark.home, "below", True)
+        mark.setPos(best[0])
+        mark.set_layout(best[1], best[2])
 
     @staticmethod
     def _covers(item) -> list[QRectF]:
@@ -336,7 +391,7 @@ class SketchScene(QGraphicsScene):
             self.show_fault(result.error, result.error_parts)
         elif result.readings:
             self.show_solution({n: (r[0], r[1]) for n, r in result.readings.items()},
-                               result.potentials, result.loops)
+                               result.potentials, result.loops, result.loop_outlines)
         else:
             self._clear_fault()
             self.clear_results()

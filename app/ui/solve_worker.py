@@ -36,6 +36,7 @@ class Result:
     readings: dict[str, tuple[float, float, float]] = field(default_factory=dict)  # I, V, P
     potentials: list[tuple[GridPoint, float]] = field(default_factory=list)
     loops: list[tuple[tuple[float, float], str, float, bool]] = field(default_factory=list)
+    loop_outlines: list[list[tuple[float, float]]] = field(default_factory=list)  # corners, per loop
     error: str = ""
     error_parts: tuple[str, ...] = ()
     notes: list[str] = field(default_factory=list)
@@ -52,11 +53,12 @@ def _grid(name: str) -> GridPoint:
     return int(x), int(y)
 
 
-def _loop_centre(loop, ends: dict[str, tuple[str, str]],
-                 pos: dict[str, tuple[float, float]]) -> tuple[float, float] | None:
+def _loop_centre(loop, ends: dict[str, tuple[str, str]], pos: dict[str, tuple[float, float]],
+                 outline: list[tuple[float, float]] | None = None) -> tuple[float, float] | None:
     """A point inside the loop's window: its area centroid, else the mean of its corners.
 
-    ``ends`` maps part names to their (first, second) points, ``pos`` points to grid positions.
+    ``ends`` maps part names to their (first, second) points, ``pos`` points to grid positions;
+    the loop's corners are appended to ``outline`` when one is given.
     """
     pts: list[tuple[float, float]] = []
     for name, sign in loop.parts:
@@ -70,6 +72,8 @@ def _loop_centre(loop, ends: dict[str, tuple[str, str]],
         pts.pop()
     if len(pts) < 3:
         return None
+    if outline is not None:
+        outline.extend(pts)
     pts.append(pts[0])
     area = cx = cy = 0.0
     for (x0, y0), (x1, y1) in zip(pts, pts[1:]):
@@ -130,9 +134,11 @@ def _from_netlist(generation: int, netlist: Netlist) -> Result:
     ends = {p.name: (p.a, p.b) for p in circuit.parts}
     pos = circuit.positions
     for loop in sol.loops:
-        c = _loop_centre(loop, ends, pos)
+        outline: list[tuple[float, float]] = []
+        c = _loop_centre(loop, ends, pos, outline)
         if c is not None and math.isfinite(loop.current):
             res.loops.append((c, loop.name, loop.current, loop.orientation != "anticlockwise"))
+            res.loop_outlines.append(outline)
     res.notes = [n.message for n in sol.notes]
     if lo is not None and hi - lo > HAZARD_VOLTS:
         res.cautions.append(
