@@ -129,6 +129,14 @@ def check_solution(c: Circuit, sol) -> None:
         k = island[p.a]
         v_isl[k] = max(v_isl.get(k, 0.0), abs(volt[p.name]), p.emf, abs(pot[p.a]), abs(pot[p.b]))
         i_isl[k] = max(i_isl.get(k, 0.0), abs(cur[p.name]), p.current)
+    # the sources' own scale: a current's rounding error, carried through the largest resistance
+    # of its island, shows as a drop; EMFs plus set currents times resistances bound it (as in
+    # tests/test_solver_reference.py natural_scales)
+    for k in v_isl:
+        members = [p for p in parts if island[p.a] == k]
+        ohms = math.fsum(p.resistance for p in members)
+        amps = math.fsum(p.current for p in members)
+        v_isl[k] = max(v_isl[k], math.fsum(p.emf for p in members) + amps * ohms)
 
     def v_floor(point: str) -> float:
         return NOISE * v_isl.get(island[point], 0.0)
@@ -206,6 +214,22 @@ def run(steps, ground) -> None:
         check_refusal({p.name for p in c.parts}, err)
         return
     check_solution(c, sol)
+
+
+@pytest.mark.xfail(reason="reported to the lead: potentials walk through a 10 MΩ branch carrying rounding "
+                          "noise; KVL round B3-R4-B5 and V(I1) vs its potentials off by 2.2e-9 of 1 V",
+                   strict=False)
+def test_potentials_are_not_walked_through_rounding_noise():
+    c = Circuit()
+    c.current_source("I1", "a", "b", 1.0)
+    c.resistor("R2", "b", "a", 100.0)
+    c.cell("B3", plus="a", minus="n3", emf=1.0)
+    c.resistor("R4", "n3", "b", 1e7)
+    c.cell("B5", plus="a", minus="b", emf=1.0)
+    sol = solve(c)
+    # B5 is ideal: V(a) - V(b) = 1 V exactly; B3 and B5 balance, so R4 carries nothing (KVL)
+    assert abs(sol.potential("a") - sol.potential("b") - 1.0) <= 1e-12
+    assert abs(sol.voltage("R4")) <= 1e-12
 
 
 @settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.too_slow])
