@@ -148,6 +148,15 @@ class Editor:
         word = ("Close " if on else "Open ") if key == "closed" else "Change "
         self.push(change_edit(self.sketch, [(name, replace(part, flags=flags))]), word + name)
 
+    def set_choice(self, name: str, key: str, option: str) -> None:
+        """Pick ``option`` for the choice ``key`` of part ``name`` (a cable's material...)."""
+        part = self.sketch.part(name)
+        self.change(name, replace(part, choices=dict(part.choices, **{key: option})), f"Change {name}")
+
+    def change(self, name: str, new: PlacedPart, text: str) -> None:
+        """Replace part ``name`` by ``new`` (several properties at once) as one step."""
+        self.push(change_edit(self.sketch, [(name, new)]), text)
+
     def rename(self, name: str, new: str) -> None:
         """Give a part a new designator; raises ValueError with a message if it cannot be used."""
         new = new.strip()
