@@ -324,6 +324,7 @@ class LoopMark(QGraphicsItem):
     """
 
     R = 9.0
+    R_COMPACT = 6.0
     SIDES = ("below", "above", "right", "left")
 
     def __init__(self) -> None:
@@ -355,7 +356,7 @@ class LoopMark(QGraphicsItem):
         """The text's box for a layout, around the arrow at the origin."""
         fm = _fm()
         text = self.name if compact else self.full_text
-        w, h, r = fm.horizontalAdvance(text) + 4, fm.height(), self.R + 4
+        w, h, r = fm.horizontalAdvance(text) + 4, fm.height(), self._radius(compact) + 4
         if side == "below":
             return QRectF(-w / 2, r, w, h)
         if side == "above":
@@ -364,9 +365,12 @@ class LoopMark(QGraphicsItem):
             return QRectF(r, -h / 2, w, h)
         return QRectF(-r - w, -h / 2, w, h)
 
+    def _radius(self, compact: bool) -> float:
+        return self.R_COMPACT if compact else self.R
+
     def rect_at(self, side: str, compact: bool) -> QRectF:
         """Everything the mark covers in a layout."""
-        r = self.R + 4
+        r = self._radius(compact) + 4
         return QRectF(-r, -r, 2 * r, 2 * r).united(self.text_rect_at(side, compact))
 
     def set_layout(self, side: str, compact: bool) -> None:
@@ -377,7 +381,7 @@ class LoopMark(QGraphicsItem):
         self.update()
 
     def boundingRect(self) -> QRectF:
-        r = self.R + 4
+        r = self._radius(self.compact) + 4
         return QRectF(-r, -r, 2 * r, 2 * r).united(self._text_rect)
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
@@ -389,7 +393,7 @@ class LoopMark(QGraphicsItem):
         pen.setCapStyle(Qt.PenCapStyle.RoundCap)
         painter.setPen(pen)
         painter.setBrush(Qt.BrushStyle.NoBrush)
-        r = self.R
+        r = self._radius(self.compact)
         rect = QRectF(-r, -r, 2 * r, 2 * r)
         # Qt angles: counter-clockwise positive (y up); the gap sits at the top
         start, span = (60 * 16, 300 * 16) if not self.clockwise else (120 * 16, -300 * 16)

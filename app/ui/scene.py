@@ -292,27 +292,35 @@ class SketchScene(QGraphicsScene):
         tag.set_corner(best)
 
     LOOP_STEPS = (0.0, 6.0, -6.0, 12.0, -12.0, 18.0, -18.0, 24.0, -24.0, 30.0, -30.0)
+    COMPACT_STEPS = tuple(float(d) for k in range(12) for d in ((0,) if k == 0 else (3 * k, -3 * k)))
+
+    TEXT_WEIGHT = 100.0  # covering a text is far worse than grazing a symbol's margin or a wire
 
     def _overlap(self, rect: QRectF, me) -> float:
-        """Area of ``rect`` (scene) over texts, symbols, wires and other marks."""
+        """Area of ``rect`` (scene) over texts and marks (weighted heavily), symbols and wires."""
         cost = 0.0
         for i in self.items(rect):
             if i is me or not i.isVisible():
                 continue
-            covers = [i.sceneBoundingRect().adjusted(5, 5, -5, -5)] if isinstance(i, WireItem) else self._covers(i)
-            for r in covers:
+            if isinstance(i, WireItem):
+                weighted = [(i.sceneBoundingRect().adjusted(5, 5, -5, -5), 1.0)]
+            else:
+                covers = self._covers(i)
+                weighted = [(r, 1.0 if isinstance(i, PartItem) and k == 0 else self.TEXT_WEIGHT)
+                            for k, r in enumerate(covers)]
+            for r, weight in weighted:
                 x = r.intersected(rect)
                 if not x.isEmpty():
-                    cost += x.width() * x.height()
+                    cost += weight * x.width() * x.height()
         return cost
 
     def _place_loop(self, mark: LoopMark) -> None:
         """Put a loop mark where it covers nothing inside its window: near the centre, text on
         any side; failing that the name alone (current in its tooltip); failing that, least covered."""
         best, best_cost = None, None
-        offsets = sorted(((dx, dy) for dx in self.LOOP_STEPS for dy in self.LOOP_STEPS),
-                         key=lambda d: d[0] * d[0] + d[1] * d[1])
         for compact in (False, True):
+            steps = self.COMPACT_STEPS if compact else self.LOOP_STEPS
+            offsets = sorted(((dx, dy) for dx in steps for dy in steps), key=lambda d: d[0] * d[0] + d[1] * d[1])
             for dx, dy in offsets:
                 at = mark.home + QPointF(dx, dy)
                 if not mark.outline.isEmpty() and not mark.outline.containsPoint(at, Qt.FillRule.OddEvenFill):
