@@ -296,28 +296,39 @@ class SketchScene(QGraphicsScene):
 
     TEXT_WEIGHT = 100.0  # covering a text is far worse than grazing a symbol's margin or a wire
 
-    def _overlap(self, rect: QRectF, me) -> float:
-        """Area of ``rect`` (scene) over texts and marks (weighted heavily), symbols and wires."""
-        cost = 0.0
-        for i in self.items(rect):
+    def _weighted_covers(self, area: QRectF, me) -> list[tuple[float, float, float, float, float]]:
+        """(left, top, right, bottom, weight) of what lies in ``area``: texts and marks weigh
+        heavily, symbol margins and wires lightly."""
+        out = []
+        for i in self.items(area):
             if i is me or not i.isVisible():
                 continue
             if isinstance(i, WireItem):
                 weighted = [(i.sceneBoundingRect().adjusted(5, 5, -5, -5), 1.0)]
             else:
-                covers = self._covers(i)
                 weighted = [(r, 1.0 if isinstance(i, PartItem) and k == 0 else self.TEXT_WEIGHT)
-                            for k, r in enumerate(covers)]
-            for r, weight in weighted:
-                x = r.intersected(rect)
-                if not x.isEmpty():
-                    cost += weight * x.width() * x.height()
+                            for k, r in enumerate(self._covers(i))]
+            out.extend((r.left(), r.top(), r.right(), r.bottom(), w) for r, w in weighted)
+        return out
+
+    @staticmethod
+    def _overlap(rect: QRectF, covers) -> float:
+        x0, y0, x1, y1 = rect.left(), rect.top(), rect.right(), rect.bottom()
+        cost = 0.0
+        for l, t, r, b, w in covers:
+            dx = min(x1, r) - max(x0, l)
+            if dx > 0:
+                dy = min(y1, b) - max(y0, t)
+                if dy > 0:
+                    cost += w * dx * dy
         return cost
 
     def _place_loop(self, mark: LoopMark) -> None:
         """Put a loop mark where it covers nothing inside its window: near the centre, text on
         any side; failing that the name alone (current in its tooltip); failing that, least covered."""
         best, best_cost = None, None
+        area = mark.outline.boundingRect() if not mark.outline.isEmpty() else QRectF(mark.home, mark.home)
+        covers = self._weighted_covers(area.adjusted(-60, -60, 60, 60), mark)
         for compact in (False, True):
             steps = self.COMPACT_STEPS if compact else self.LOOP_STEPS
             offsets = sorted(((dx, dy) for dx in steps for dy in steps), key=lambda d: d[0] * d[0] + d[1] * d[1])
@@ -329,7 +340,7 @@ class SketchScene(QGraphicsScene):
                     rect = mark.rect_at(side, compact).translated(at)
                     if not mark.outline.isEmpty() and not mark.outline.boundingRect().contains(rect):
                         continue
-                    cost = self._overlap(rect, mark)
+                    cost = self._overlap(rect, covers)
                     if best_cost is None or cost < best_cost:
                         best, best_cost = (at, side, compact), cost
                     if cost == 0:
