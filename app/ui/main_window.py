@@ -17,6 +17,7 @@ from ..sketch.kinds import KINDS
 from ..sketch.model import Sketch
 from .annotations import LAYERS
 from .editor import FRAGMENT_MIME, Editor
+from .bench_tools import BenchTools
 from .hand_analysis import HandAnalysis
 from .icons import tool_icon
 from .properties import InlineValueEditor, PartPanel
@@ -97,6 +98,7 @@ class MainWindow(QMainWindow):
         self._build_palette()
         self._build_docks()
         self.hand = HandAnalysis(self)  # Equations and Check panels, current tags, traced loops
+        self.bench = BenchTools(self)  # Cautions panel and marks, equivalent at two points, preferred values
         self._build_menus()
         self.view.modeChanged.connect(self._mode_changed)
         self.view.editRequested.connect(self.edit_value_inline)
@@ -259,6 +261,7 @@ class MainWindow(QMainWindow):
         an = mb.addMenu("&Analysis")
         for a in self.hand.menu_actions():
             an.addSeparator() if a is None else an.addAction(a)
+        self.bench.build_menu(mb)
 
     # -- the document ------------------------------------------------------------------
     def set_document(self, sketch: Sketch, path: Path | None) -> None:
@@ -290,6 +293,7 @@ class MainWindow(QMainWindow):
         self.view.set_editor(self.editor)
         self.part_panel.set_editor(self.editor)
         self.hand.attach()
+        self.bench.attach()
         self.setWindowModified(False)
         self._update_title()
         self._document_changed()
@@ -322,6 +326,7 @@ class MainWindow(QMainWindow):
     def _show_result(self, result: Result) -> None:
         self.scene.show_result(result)
         self.readings_model.set_readings(result.readings if not result.error else {})
+        self.bench.show_result(result)
         text = result.summary
         extra = result.cautions + result.notes
         if extra:
@@ -343,7 +348,8 @@ class MainWindow(QMainWindow):
             for n in names:
                 r = self.readings_model.row_of(n)
                 if r >= 0:
-                    sel.select(self.readings_model.index(r, 0), self.readings_model.index(r, 3))
+                    sel.select(self.readings_model.index(r, 0),
+                               self.readings_model.index(r, self.readings_model.columnCount() - 1))
             sm.select(sel, QItemSelectionModel.SelectionFlag.ClearAndSelect)
             if len(names) == 1 and self.readings_model.row_of(names[0]) >= 0:
                 self.readings.scrollTo(self.readings_model.index(self.readings_model.row_of(names[0]), 0))

@@ -2,6 +2,9 @@
 
 Rows follow the document (designators in natural order: R2 before R10);
 values come from the newest solution and read "—" while there is none.
+The last column says how far the meters shift the circuit from the
+unmetered one: each meter's own reading against the reading of an ideal
+meter, and the part whose current the meters change most.
 """
 from __future__ import annotations
 
@@ -15,8 +18,9 @@ from ..units import format_value
 
 __all__ = ["ReadingsModel", "ReadingsView", "natural_key"]
 
-COLUMNS = ("Part", "Current", "Drop", "Power")
+COLUMNS = ("Part", "Current", "Drop", "Power", "Meter effect")
 _UNITS = (None, "A", "V", "W")
+EFFECT = 4  # the column of the meters' effect
 
 
 def natural_key(name: str) -> tuple:
@@ -31,6 +35,7 @@ class ReadingsModel(QAbstractTableModel):
         super().__init__(parent)
         self.names: list[str] = []
         self.rows: dict[str, tuple[float, float, float]] = {}
+        self.effects: dict[str, tuple[str, str]] = {}  # short text, full text
         self._row_of: dict[str, int] = {}
 
     def set_parts(self, sketch: Sketch) -> None:
@@ -48,6 +53,12 @@ class ReadingsModel(QAbstractTableModel):
         if self.names:
             self.dataChanged.emit(self.index(0, 1), self.index(len(self.names) - 1, 3))
 
+    def set_effects(self, effects: dict[str, tuple[str, str]]) -> None:
+        """Show how the meters shift the circuit: (short, full) text per part (meters, the most shifted part)."""
+        self.effects = effects
+        if self.names:
+            self.dataChanged.emit(self.index(0, EFFECT), self.index(len(self.names) - 1, EFFECT))
+
     def row_of(self, name: str) -> int:
         return self._row_of.get(name, -1)
 
@@ -61,6 +72,8 @@ class ReadingsModel(QAbstractTableModel):
         name = self.names[row]
         if column == 0:
             return name
+        if column == EFFECT:
+            return self.effects.get(name, ("", ""))[0]
         r = self.rows.get(name)
         if r is None:
             return "—"
@@ -77,6 +90,10 @@ class ReadingsModel(QAbstractTableModel):
             return "Current through the part from its first terminal to its second"
         if role == Qt.ItemDataRole.ToolTipRole and index.column() == 3:
             return "Power absorbed; negative means the part delivers power"
+        if role == Qt.ItemDataRole.ToolTipRole and index.column() == EFFECT:
+            full = self.effects.get(self.names[index.row()], ("", ""))[1]
+            return full or ("For a meter: its reading against an ideal meter's. For another part: how much the "
+                    "meters change its current from the unmetered circuit")
         return None
 
     def headerData(self, section: int, orientation: Qt.Orientation, role: int = Qt.ItemDataRole.DisplayRole):

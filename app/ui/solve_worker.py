@@ -16,8 +16,10 @@ from PySide6.QtCore import QObject, Signal
 
 from solver import CircuitError, solve
 
+from ..assess import Caution
 from ..sketch.model import Sketch
 from ..sketch.netlist import Netlist, to_circuit
+from .bench_results import assess_result, detached
 from ..units import format_value
 
 __all__ = ["Result", "LiveSolver", "solve_sketch", "HAZARD_VOLTS"]
@@ -42,6 +44,7 @@ class Result:
     notes: list[str] = field(default_factory=list)
     cautions: list[str] = field(default_factory=list)
     summary: str = ""
+    assessment: list[Caution] = field(default_factory=list)  # app.assess cautions, most severe first
 
     @property
     def solved(self) -> bool:
@@ -98,7 +101,7 @@ def _inside(p: tuple[float, float], poly: list[tuple[float, float]]) -> bool:
     return inside
 
 
-def _from_netlist(generation: int, netlist: Netlist) -> Result:
+def _from_netlist(generation: int, netlist: Netlist, sketch: Sketch | None = None) -> Result:
     res = Result(generation, junctions=list(netlist.junctions), open_ends=list(netlist.open_ends))
     circuit = netlist.circuit
     names = [p.name for p in circuit.parts if not p.name.startswith("~")]
@@ -144,6 +147,8 @@ def _from_netlist(generation: int, netlist: Netlist) -> Result:
         res.cautions.append(
             f"Caution: {format_value(hi - lo, 'V')} between points of this circuit is above 60 V DC, "
             "hazardous live (IEC 61010-1); follow local codes and licensed practice.")
+    if sketch is not None:
+        res.assessment = assess_result(sketch, netlist, sol)
     n_loops = len(sol.loops)
     res.summary = (f"Solved by mesh currents: {n_loops} loop{'s' if n_loops != 1 else ''}, "
                    f"{len(sol.nodes)} nodes.")
@@ -156,12 +161,12 @@ def solve_sketch(sketch: Sketch, generation: int = 0) -> Result:
         netlist = to_circuit(sketch)
     except CircuitError as e:
         return Result(generation, error=e.message, error_parts=tuple(e.parts), summary="Not solved: " + e.message)
-    return _guarded(generation, netlist)
+    return _guarded(generation, netlist, sketch)
 
 
-def _guarded(generation: int, netlist: Netlist) -> Result:
+def _guarded(generation: int, netlist: Netlist, sketch: Sketch | None = None) -> Result:
     try:
-        return _from_netlist(generation, netlist)
+        return _from_netlist(generation, netlist, sketch)
     except Exception as e:  # a fault of ours: say so in words, never a traceback
         msg = f"the solver stopped unexpectedly ({type(e).__name__}); please report this sketch."
         return Result(generation, junctions=list(netlist.junctions), open_ends=list(netlist.open_ends),
@@ -215,10 +220,10 @@ class LiveSolver(QObject):
         if self._pool is None:
             self._pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="loopwright-solve")
         self._busy = True
-        self._pool.submit(self._work, gen, netlist)
+        self._pool.submit(self._work, gen, netlist, detached(self.sketch))
 
-    def _work(self, gen: int, netlist: Netlist) -> None:
-        self._bridge.done.emit(_guarded(gen, netlist))
+    def _work(self, gen: int, netlist: Netlist, sketch: Sketch) -> None:
+        self._bridge.done.emit(_guarded(gen, netlist, sketch))
 
     def _on_done(self, result: Result) -> None:
         self._busy = False
