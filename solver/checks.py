@@ -125,7 +125,7 @@ def check_current_sources(topo: Topology) -> None:
     g0 = min(members, key=lambda g: (len(members[g]), g))
     ks = members[g0]
     names = [topo.part_names[topo.branch_parts[k]] for k in ks]
-    if len(bad) and len(ks) == 1:
+    if len(ks) == 1:
         raise CurrentSourceCutError(
             f"{names[0]} has no return path: its current has nowhere to flow. "
             "Close the loop through the rest of the circuit, or remove it.",

@@ -35,7 +35,7 @@ DENSE_LIMIT = 400       # unknowns up to which the dense solver is used
 KVL_TOLERANCE = 1e-9    # largest relative KVL residual accepted
 ROUNDING = 1e-15        # residual allowed per unit of equation terms: double-precision noise
 TINY = 1e-300           # results below this are rounding residue and shown as zero
-WIDE_SPREAD = 1e6       # resistance ratio above which fundamental loops follow the least-resistance tree
+WIDE_SPREAD = 1e3       # resistance ratio above which fundamental loops follow the least-resistance tree
 
 
 def solve(circuit: Circuit, ground: str | None = None) -> Solution:
@@ -87,7 +87,7 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
 
     # Windows when the drawing allows, else a shallow tree's loops; if either is
     # too ill-conditioned, the loops of a least-resistance tree. With resistances
-    # spread over many decades the shallow tree is skipped: its loops may carry a
+    # spread over more than three decades the shallow tree is skipped: its loops may carry a
     # large resistance in several loops and lose digits without failing KVL.
     positive = topo.br_r[topo.br_r > 0]
     wide = len(positive) > 0 and positive.max() > WIDE_SPREAD * positive.min()
@@ -111,12 +111,15 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
         assert failure is not None
         raise failure
 
-    # Node potentials: walk the spanning forest from each island's reference.
-    k = forest.edge
+    # Node potentials: walk a least-resistance tree from each island's reference,
+    # so no potential is carried through a large resistance whose drop is only
+    # rounding noise (ideal cells and low resistances fix potentials best).
+    walk = least_resistance_forest(topo, roots)
+    k = walk.edge
     step = np.zeros(n)
     has = k >= 0
     step[has] = np.where(topo.br_u[k[has]] == np.flatnonzero(has), v_br[k[has]], -v_br[k[has]])
-    potential = accumulate_to_root(forest, step)
+    potential = accumulate_to_root(walk, step)
 
     current = np.zeros(len(topo.part_names))
     voltage = np.zeros(len(topo.part_names))

@@ -216,9 +216,6 @@ def run(steps, ground) -> None:
     check_solution(c, sol)
 
 
-@pytest.mark.xfail(reason="reported to the lead: potentials walk through a 10 MΩ branch carrying rounding "
-                          "noise; KVL round B3-R4-B5 and V(I1) vs its potentials off by 2.2e-9 of 1 V",
-                   strict=False)
 def test_potentials_are_not_walked_through_rounding_noise():
     c = Circuit()
     c.current_source("I1", "a", "b", 1.0)
