@@ -52,7 +52,7 @@ def _table(headers: list[str]) -> QTableWidget:
 def _cell(text: str, right: bool = False) -> QTableWidgetItem:
     item = QTableWidgetItem(text)
     if right:
-        item.setTextAlignment(int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter))
+        item.setTextAlignment(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
     return item
 
 

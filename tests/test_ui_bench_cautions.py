@@ -1,0 +1,202 @@
+"""Bench parts in the window, with real mouse and key events: a fuse too small for its load,
+blowing it, meter readings, the equivalent at two points and preferred values.
+
+Expected figures are worked out by hand beside each check (Ohm's law, parallel
+resistors, a divider's Thevenin equivalent) or read from the IEC 60063 tables.
+"""
+from __future__ import annotations
+
+import pytest
+
+pytest.importorskip("pytestqt")
+
+from PySide6.QtCore import QPoint, QPointF, QSettings, Qt  # noqa: E402
+from PySide6.QtWidgets import QApplication  # noqa: E402
+
+from app.assess import DISCLAIMER  # noqa: E402
+from app.sketch.fileio import save_sketch  # noqa: E402
+from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
+from app.ui.bench_marks import Badge, MeterFace  # noqa: E402
+from app.ui.main_window import MainWindow  # noqa: E402
+
+
+def supply_with_a_gap() -> Sketch:
+    """12 V ideal cell; R3 (24 Ω) straight across it; a gap in the top rail from (0,0) to (4,0)
+    for a fuse; downstream R1 (6 Ω) and R2 (12 Ω)."""
+    s = Sketch()
+    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 12.0}))
+    s.add_part(PlacedPart("resistor", "R3", -4, 0, 90, False, {"resistance": 24.0}))
+    s.add_part(PlacedPart("resistor", "R1", 8, 0, 90, False, {"resistance": 6.0}))
+    s.add_part(PlacedPart("resistor", "R2", 12, 0, 90, False, {"resistance": 12.0}))
+    for w in (Wire(-4, 0, 0, 0), Wire(-4, 4, 0, 4), Wire(4, 0, 12, 0), Wire(0, 4, 12, 4)):
+        s.add_wire(w)
+    s.add_part(PlacedPart("ground", "GND1", 0, 4))
+    return s
+
+
+def divider() -> Sketch:
+    """10 V cell over R1 = R2 = 1 kΩ; the voltmeter PV1 (10 MΩ) can be added across R2."""
+    s = Sketch()
+    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 10.0}))
+    s.add_part(PlacedPart("resistor", "R1", 0, 0, 0, False, {"resistance": 1000.0}))
+    s.add_part(PlacedPart("resistor", "R2", 4, 0, 90, False, {"resistance": 1000.0}))
+    s.add_wire(Wire(0, 4, 4, 4))
+    s.add_part(PlacedPart("ground", "GND1", 0, 4))
+    return s
+
+
+def open_window(qtbot, tmp_path, sketch: Sketch) -> MainWindow:
+    w = MainWindow(QSettings(str(tmp_path / "settings.ini"), QSettings.Format.IniFormat))
+    w.ask_to_save = lambda: "discard"
+    w.tell = lambda title, message: pytest.fail(message)
+    qtbot.addWidget(w)
+    w.resize(1200, 800)
+    w.show()
+    w.activateWindow()
+    for _ in range(100):  # shortcut keys reach the window's actions once it is active
+        QApplication.processEvents()
+        if QApplication.activeWindow() is w:
+            break
+    assert QApplication.activeWindow() is w
+    path = tmp_path / "bench.lwsk"
+    save_sketch(sketch, path)
+    assert w.open_path(path)
+    w.view.resetTransform()
+    w.view.centerOn(QPointF(80, 40))
+    w.view.setFocus()
+    return w
+
+
+def at(win, x: float, y: float) -> QPoint:
+    return win.view.mapFromScene(QPointF(x * 20.0, y * 20.0))
+
+
+def click(qtbot, win, x: float, y: float) -> None:
+    vp = win.view.viewport()
+    qtbot.mouseMove(vp, at(win, x, y))
+    qtbot.mouseClick(vp, Qt.MouseButton.LeftButton, pos=at(win, x, y))
+
+
+def key(qtbot, win, k, mods=Qt.KeyboardModifier.NoModifier) -> None:
+    qtbot.keyClick(win.view, k, mods)
+
+
+def current(win, name: str) -> float:
+    return win.readings_model.rows[name][0]
+
+
+def test_a_fuse_too_small_is_flagged_on_the_canvas_and_blowing_it_stops_the_current_downstream(qtbot, tmp_path):
+    win = open_window(qtbot, tmp_path, supply_with_a_gap())
+    key(qtbot, win, Qt.Key.Key_U)  # the fuse tool
+    assert win.view.mode == "fuse" and win.view.rotation == 0
+    click(qtbot, win, 2, 0)  # the middle of the gap in the top rail
+    key(qtbot, win, Qt.Key.Key_Escape)
+    fuse = win.sketch.part("F1")
+    assert fuse.kind == "fuse" and fuse.terminals() == [(0, 0), (4, 0)]
+    assert fuse.value("rating") == 1.0  # the default rating, far below the load
+    # By hand (Ohm's law): R1 takes 12/6 = 2 A and R2 12/12 = 1 A, so the fuse carries 3 A,
+    # 2 A (200 %) above its 1 A rating; R3 across the cell takes 12/24 = 0.5 A.
+    assert current(win, "F1") == pytest.approx(3.0)
+    badge = win.bench.marks.badge("F1")
+    assert isinstance(badge, Badge) and badge.scene() is win.scene
+    assert badge.parentItem() is win.scene.part_items["F1"] and badge.isVisible()
+    assert badge.text == "OVER +2.00 A (200 %)"
+    assert badge.shape_name == "triangle"  # a shape as well as the colour
+    assert "F1" in badge.toolTip() and "3.00 A" in badge.toolTip()
+    entries = [t for t in win.bench.panel.texts() if t.startswith("Warning:") and "F1" in t]
+    assert entries and "F1 carries 3.00 A" in entries[0]
+    assert win.bench.panel.disclaimer.text() == DISCLAIMER and not win.bench.panel.disclaimer.isHidden()
+
+    # Select the fuse by clicking it, then blow it with T.
+    key(qtbot, win, Qt.Key.Key_Q)
+    click(qtbot, win, 2, 0)
+    assert win.scene.selected_parts() == ["F1"]
+    key(qtbot, win, Qt.Key.Key_T)
+    assert win.sketch.part("F1").flag("blown")
+    for name in ("F1", "R1", "R2"):  # downstream of the blown fuse: nothing flows
+        assert current(win, name) == pytest.approx(0.0, abs=1e-12)
+        assert win.scene.part_items[name].current_mark.value == pytest.approx(0.0, abs=1e-12)
+    assert current(win, "R3") == pytest.approx(0.5)  # upstream of the fuse, still 12/24 A
+    assert win.bench.marks.badge_text("F1") == "BLOWN"
+    assert win.bench.marks.badge("F1").shape_name != "triangle"
+
+    key(qtbot, win, Qt.Key.Key_Z, Qt.KeyboardModifier.ControlModifier)
+    assert current(win, "R1") == pytest.approx(2.0)
+    assert win.bench.marks.badge_text("F1").startswith("OVER")
+
+
+def test_picking_a_caution_selects_its_part(qtbot, tmp_path):
+    s = supply_with_a_gap()
+    s.add_part(PlacedPart("fuse", "F1", 0, 0, 0, False, {"rating": 2.5}))
+    win = open_window(qtbot, tmp_path, s)
+    lst = win.bench.panel.list
+    row = next(i for i in range(lst.count()) if "F1 carries" in lst.item(i).text())
+    rect = lst.visualItemRect(lst.item(row))
+    qtbot.mouseClick(lst.viewport(), Qt.MouseButton.LeftButton, pos=rect.center())
+    assert win.scene.selected_parts() == ["F1"]
+    # by hand: 3 A through a 2.5 A fuse is 0.5 A (20 %) over
+    assert win.bench.marks.badge_text("F1") == "OVER +500 mA (20 %)"
+
+
+def test_a_voltmeter_shows_its_loaded_reading_and_its_effect(qtbot, tmp_path):
+    s = divider()
+    s.add_part(PlacedPart("voltmeter", "PV1", 8, 0, 90, False, {"input_resistance": 1000.0}))
+    s.add_wire(Wire(4, 0, 8, 0))
+    s.add_wire(Wire(4, 4, 8, 4))
+    win = open_window(qtbot, tmp_path, s)
+    # By hand: 1 kΩ meter across the lower 1 kΩ makes 500 Ω, so it reads 10·500/1500 = 3.333 V;
+    # an ideal meter would read 5 V, so the meter shifts its own reading by −33 %.
+    face = win.bench.marks._faces["PV1"]
+    assert isinstance(face, MeterFace) and face.isVisible()
+    assert win.bench.marks.reading_text("PV1") == "3.333 V"
+    row = win.readings_model.row_of("PV1")
+    assert win.readings_model.text(row, 4) == "-33 %"
+
+
+def test_equivalent_at_two_points_picked_on_the_canvas(qtbot, tmp_path):
+    win = open_window(qtbot, tmp_path, divider())
+    win.bench.act_equivalent.trigger()
+    assert win.bench.picking
+    click(qtbot, win, 4, 0)  # top of R2
+    click(qtbot, win, 4, 4)  # bottom of R2
+    dialog = win.bench.dialog
+    assert dialog is not None and not win.bench.picking
+    eq = dialog.equivalent
+    # Thevenin of a divider by hand: 10 V · 1k/(1k + 1k) = 5 V behind 1k ∥ 1k = 500 Ω,
+    # Norton 5/500 = 10 mA; the best load is 500 Ω drawing 5²/(4·500) = 12.5 mW (Jacobi's law).
+    assert eq.open_voltage == pytest.approx(5.0)
+    assert eq.resistance == pytest.approx(500.0)
+    texts = [dialog.table.item(r, 1).text() for r in range(dialog.table.rowCount())]
+    assert "5.00 V" in texts and "500 Ω" in texts and "10.0 mA" in texts and "12.5 mW" in texts
+    dialog.close()
+
+
+def test_picking_a_point_that_is_no_terminal_says_so(qtbot, tmp_path):
+    win = open_window(qtbot, tmp_path, divider())
+    win.bench.act_equivalent.trigger()
+    click(qtbot, win, 2, 2)  # empty grid inside the loop
+    assert win.bench.picking and win.bench.picked == []
+    assert "not a terminal" in win.hint_text.text()
+    key(qtbot, win, Qt.Key.Key_Escape)
+    assert not win.bench.picking
+
+
+def test_preferred_values_for_a_resistor_and_using_one(qtbot, tmp_path):
+    s = divider()
+    s.replace_part("R1", PlacedPart("resistor", "R1", 0, 0, 0, False, {"resistance": 5000.0}))
+    win = open_window(qtbot, tmp_path, s)
+    click(qtbot, win, 2, 0)
+    assert win.scene.selected_parts() == ["R1"]
+    dialog = win.bench.preferred_values()
+    rows = {(dialog.table.item(r, 0).text(), dialog.table.item(r, 1).text()) for r in range(dialog.table.rowCount())}
+    # IEC 60063: E12 has 4.7 and 5.6, E24 4.7 and 5.1, E96 4.99 and 5.11 either side of 5
+    assert {("E12", "4.70 kΩ"), ("E12", "5.60 kΩ"), ("E24", "5.10 kΩ"), ("E96", "4.99 kΩ"),
+            ("E96", "5.11 kΩ")} <= rows
+    r = next(r for r in range(dialog.table.rowCount()) if dialog.table.item(r, 1).text() == "5.10 kΩ")
+    qtbot.mouseClick(dialog.table.viewport(), Qt.MouseButton.LeftButton,
+                     pos=dialog.table.visualItemRect(dialog.table.item(r, 0)).center())
+    depth = win.stack.count()
+    qtbot.mouseClick(dialog.use_button, Qt.MouseButton.LeftButton)
+    assert win.sketch.part("R1").value("resistance") == 5100.0
+    assert win.stack.count() == depth + 1
+    dialog.close()
