@@ -12,6 +12,7 @@ from PySide6.QtGui import QImage, QPainter
 from PySide6.QtWidgets import QApplication, QGraphicsItem
 
 from ..sketch.fileio import load_sketch
+from .bench_marks import BenchMarks
 from .scene import SketchScene
 from .solve_worker import solve_sketch
 from .symbols import IEC
@@ -99,7 +100,10 @@ def render(path_in: str | os.PathLike[str], path_out: str | os.PathLike[str]) ->
     set_theme(LIGHT)
     try:
         scene = SketchScene(sketch, IEC)
-        scene.show_result(solve_sketch(sketch))
+        result = solve_sketch(sketch)
+        scene.show_result(result)
+        marks = BenchMarks(scene, scene.part_items)  # cautions and meter displays, as in the window
+        marks.show(result.assessment if not result.error else [])
         render_scene(scene, path_out)
     finally:
         set_theme(None)
