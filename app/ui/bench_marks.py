@@ -37,9 +37,9 @@ def badge_for(c: Caution) -> tuple[str, str] | None:
     if k == "hazardous_voltage":
         return TRIANGLE, f"> {f.get('limit', 60.0):g} V"
     if k == "resistor_overload":
-        return TRIANGLE, f"OVER {_pct(100 * f['fraction'])} W rating"
+        return TRIANGLE, f"OVER {_pct(100 * f['fraction'])} of rating"
     if k == "resistor_hot":
-        return TRIANGLE, f"HOT {_pct(100 * f['fraction'])} W rating"
+        return TRIANGLE, f"HOT {_pct(100 * f['fraction'])} of rating"
     if k == "fuse_over":
         return TRIANGLE, f"OVER +{format_value(-f['margin'], 'A')} ({_pct(100 * (f['load_fraction'] - 1))})"
     if k == "fuse_blown":
@@ -238,10 +238,12 @@ class PointBadge(QGraphicsItem):
         self._rect = QRectF()
 
     def set_text(self, text: str, tip: str) -> None:
+        """Show ``text``, hung up and to the left of the point (clear of a part's body and its tag)."""
         self.prepareGeometryChange()
         self.text = text
         fm = QFontMetricsF(small_font())
-        self._rect = QRectF(6, 4, fm.horizontalAdvance(text) + 22, max(fm.height(), 13.0) + 2)
+        w, h = fm.horizontalAdvance(text) + 22, max(fm.height(), 13.0) + 2
+        self._rect = QRectF(-w - 6, -2 * h - 12, w, h)
         self.setToolTip(tip)
         self.update()
 
@@ -356,7 +358,7 @@ class BenchMarks:
             self._points.append(item)
         for item, (g, c) in zip(self._points, spots):
             item.setPos(to_scene(g))
-            item.set_text(f"> {c.figures.get('limit', 60.0):g} V to ground: {format_value(c.figures['voltage'], 'V')}",
+            item.set_text(f"{format_value(abs(c.figures['voltage']), 'V')} > {c.figures.get('limit', 60.0):g} V",
                           c.message)
             item.setVisible(True)
         for item in self._points[len(spots):]:

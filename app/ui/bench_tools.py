@@ -43,7 +43,7 @@ def meter_effects(cautions: list[Caution], kinds: dict[str, str]) -> dict[str, t
             else:
                 short = f"ideal {ideal}"
             out[c.part] = (short, full)
-        elif c.kind == "meter_loading" and c.part:
+        elif c.kind == "meter_loading" and c.part and f.get("shift_percent", 0.0) >= 0.01:
             out[c.part] = (f"{f['shift_percent']:.2g} % by meters", c.message)
     return out
 
