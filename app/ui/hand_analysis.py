@@ -8,6 +8,7 @@ selection and the canvas selection in step.
 """
 from __future__ import annotations
 
+from shiboken6 import isValid
 from PySide6.QtCore import QPoint, Qt
 from PySide6.QtWidgets import QDockWidget, QInputDialog, QLineEdit, QMenu
 
@@ -243,7 +244,9 @@ class HandAnalysis:
             self.band.show_segments(part_segments(net, parts), "refused")
 
     def _canvas_selection_changed(self) -> None:
-        if self._syncing or self.scene is None:
+        # the scene may already be gone (its C++ side deleted with the window) when a
+        # last selection change arrives during teardown
+        if self._syncing or self.scene is None or not isValid(self.scene):
             return
         self._syncing = True
         try:
