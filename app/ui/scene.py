@@ -10,6 +10,7 @@ from __future__ import annotations
 from collections.abc import Iterable, Iterator
 from contextlib import contextmanager
 
+import numpy as np
 from PySide6.QtCore import QPointF, QRectF, Qt, Signal
 from PySide6.QtGui import QPolygonF
 from PySide6.QtWidgets import QGraphicsScene
@@ -311,46 +312,67 @@ class SketchScene(QGraphicsScene):
             out.extend((r.left(), r.top(), r.right(), r.bottom(), w) for r, w in weighted)
         return out
 
-    @staticmethod
-    def _overlap(rect: QRectF, covers) -> float:
-        x0, y0, x1, y1 = rect.left(), rect.top(), rect.right(), rect.bottom()
-        cost = 0.0
-        for l, t, r, b, w in covers:
-            dx = min(x1, r) - max(x0, l)
-            if dx > 0:
-                dy = min(y1, b) - max(y0, t)
-                if dy > 0:
-                    cost += w * dx * dy
-        return cost
+    @classmethod
+    def _offsets(cls, compact: bool) -> np.ndarray:
+        """Candidate offsets from a window's centre, nearest first (cached per layout)."""
+        key = "_offsets_compact" if compact else "_offsets_full"
+        cached = getattr(cls, key, None)
+        if cached is None:
+            steps = cls.COMPACT_STEPS if compact else cls.LOOP_STEPS
+            pairs = sorted(((dx, dy) for dx in steps for dy in steps), key=lambda d: d[0] * d[0] + d[1] * d[1])
+            cached = np.array(pairs, dtype=float)
+            setattr(cls, key, cached)
+        return cached
 
     def _place_loop(self, mark: LoopMark) -> None:
         """Put a loop mark where it covers nothing inside its window: near the centre, text on
-        any side; failing that the name alone (current in its tooltip); failing that, least covered."""
-        best, best_cost = None, None
-        area = mark.outline.boundingRect() if not mark.outline.isEmpty() else QRectF(mark.home, mark.home)
-        covers = self._weighted_covers(area.adjusted(-60, -60, 60, 60), mark)
+        any side; failing that the name alone (current in its tooltip); failing that, least covered.
+
+        All candidate places are scored at once with numpy (overlap area with texts weighted
+        far above symbol margins and wires); only the winners are tested against the
+        window's outline, which is the one check that needs Qt.
+        """
+        outlined = not mark.outline.isEmpty()
+        area = mark.outline.boundingRect() if outlined else QRectF(mark.home, mark.home)
+        covers = np.array(self._weighted_covers(area.adjusted(-60, -60, 60, 60), mark), dtype=float).reshape(-1, 5)
+        cands, layouts = [], []
         for compact in (False, True):
-            steps = self.COMPACT_STEPS if compact else self.LOOP_STEPS
-            offsets = sorted(((dx, dy) for dx in steps for dy in steps), key=lambda d: d[0] * d[0] + d[1] * d[1])
-            for dx, dy in offsets:
-                at = mark.home + QPointF(dx, dy)
-                if not mark.outline.isEmpty() and not mark.outline.containsPoint(at, Qt.FillRule.OddEvenFill):
-                    continue
-                for side in LoopMark.SIDES:
-                    rect = mark.rect_at(side, compact).translated(at)
-                    if not mark.outline.isEmpty() and not mark.outline.boundingRect().contains(rect):
-                        continue
-                    cost = self._overlap(rect, covers)
-                    if best_cost is None or cost < best_cost:
-                        best, best_cost = (at, side, compact), cost
-                    if cost == 0:
-                        mark.setPos(at)
-                        mark.set_layout(side, compact)
-                        return
-        if best is None:
-            best = (mark.home, "below", True)
-        mark.setPos(best[0])
-        mark.set_layout(best[1], best[2])
+            off = self._offsets(compact)
+            for side in LoopMark.SIDES:
+                r = mark.rect_at(side, compact)
+                base = np.array([r.left(), r.top(), r.right(), r.bottom()])
+                at = off + np.array([mark.home.x(), mark.home.y()])
+                cands.append(np.hstack([at, at[:, [0, 1, 0, 1]] + base]))
+                layouts.extend((side, compact, k) for k in range(len(off)))
+        c = np.vstack(cands)   # columns: x, y, left, top, right, bottom
+        # preference order: full layout before compact, nearest offset first, sides in order
+        order = np.lexsort((np.array([LoopMark.SIDES.index(s) for s, _, _ in layouts]),
+                            np.array([k for _, _, k in layouts]),
+                            np.array([cp for _, cp, _ in layouts])))
+        c = c[order]
+        layouts = [layouts[i] for i in order]
+        ok = np.ones(len(c), bool)
+        if outlined:
+            box = mark.outline.boundingRect()
+            ok = (c[:, 2] >= box.left()) & (c[:, 3] >= box.top()) & (c[:, 4] <= box.right()) & (c[:, 5] <= box.bottom())
+        if len(covers):
+            dx = np.minimum(c[:, 4:5], covers[:, 2]) - np.maximum(c[:, 2:3], covers[:, 0])
+            dy = np.minimum(c[:, 5:6], covers[:, 3]) - np.maximum(c[:, 3:4], covers[:, 1])
+            cost = (np.clip(dx, 0, None) * np.clip(dy, 0, None) * covers[:, 4]).sum(axis=1)
+        else:
+            cost = np.zeros(len(c))
+        # best first: every free place in preference order, then the least covered
+        ranked = np.lexsort((np.arange(len(c)), cost))
+        for i in ranked[ok[ranked]]:
+            at = QPointF(c[i, 0], c[i, 1])
+            if outlined and not mark.outline.containsPoint(at, Qt.FillRule.OddEvenFill):
+                continue
+            side, compact, _ = layouts[i]
+            mark.setPos(at)
+            mark.set_layout(side, compact)
+            return
+        mark.setPos(mark.home)
+        mark.set_layout("below", True)
 
     @staticmethod
     def _covers(item) -> list[QRectF]:
