@@ -176,6 +176,31 @@ def test_moving_a_part_stretches_the_wires_on_its_terminals(qtbot, win):
     assert all(w.x1 == w.x2 or w.y1 == w.y2 for w in s.wires)
 
 
+def test_turning_a_wired_part_keeps_its_wires_on_its_terminals(qtbot, win):
+    # one loop: a cell and R1 joined by wires; then R1 is turned by Space
+    place(qtbot, win, Qt.Key.Key_B, 0, 2, rotation=90)       # plus at (0, 0), minus at (0, 4)
+    place(qtbot, win, Qt.Key.Key_R, 6, 0)                    # R1 from (4, 0) to (8, 0)
+    wire(qtbot, win, (0, 0), (4, 0))
+    wire(qtbot, win, (8, 0), (8, 4), (0, 4))
+    click(qtbot, win, 6, 0)                                   # select R1
+    key(qtbot, win, Qt.Key.Key_Space)                         # turn it a quarter
+    s = win.sketch
+    part = s.part("R1")
+    assert part.rotation == 90
+    ends = {e for w in s.wires for e in w.ends}
+    assert set(part.terminals()) <= ends                      # both terminals still wired
+    assert all(w.x1 == w.x2 or w.y1 == w.y2 for w in s.wires)
+    net = to_circuit(s)
+    assert not net.open_ends
+    sol = solve(net.circuit, ground=net.ground)
+    # Ohm's law round the single loop: I = E / (R + r), with the parts' default values
+    cell, r1 = s.part("B1"), s.part("R1")
+    expected = cell.value("emf") / (r1.value("resistance") + cell.value("internal_resistance"))
+    assert abs(sol.current("R1")) == pytest.approx(expected, rel=1e-9)
+    key(qtbot, win, Qt.Key.Key_Z, Qt.KeyboardModifier.ControlModifier)   # undo the turn
+    assert win.sketch.part("R1").rotation == 0
+
+
 def test_save_close_reopen_gives_the_identical_document(qtbot, win, tmp_path):
     draw_two_meshes(qtbot, win)
     path = tmp_path / "two_meshes.lwsk"

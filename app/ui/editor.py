@@ -15,7 +15,7 @@ from PySide6.QtGui import QUndoStack
 from ..sketch.kinds import KINDS, kind_spec
 from ..sketch.model import PlacedPart, Sketch, Wire
 from .commands import SketchCommand
-from .edits import (Edit, add_parts_edit, change_edit, delete_edit, move_target, rotate_target,
+from .edits import (Edit, add_parts_edit, change_edit, delete_edit, move_target, rotate_edit,
                     route, wires_edit)
 from .scene import SketchScene
 
@@ -127,8 +127,7 @@ class Editor:
 
     def rotate(self, names: list[str], mirror: bool = False) -> None:
         if names:
-            news = [(n, rotate_target(self.sketch.part(n), mirror=mirror)) for n in names]
-            self.push(change_edit(self.sketch, news), "Mirror" if mirror else "Rotate")
+            self.push(rotate_edit(self.sketch, names, mirror=mirror), "Mirror" if mirror else "Rotate")
             self.scene.select(names)
 
     def rotate_selection(self, mirror: bool = False) -> None:

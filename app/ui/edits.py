@@ -15,7 +15,7 @@ from ..sketch.model import PlacedPart, Sketch, Wire, transform
 __all__ = [
     "Edit", "apply_edit", "revert_edit", "compose", "set_wires",
     "add_parts_edit", "delete_edit", "move_target", "change_edit", "wires_edit",
-    "route", "rotate_target", "connected_points",
+    "route", "rotate_edit", "rotate_target", "follow_points", "connected_points",
 ]
 
 GridPoint = tuple[int, int]
@@ -127,18 +127,40 @@ def move_target(parts: dict[str, PlacedPart], wires: tuple[Wire, ...], wire_indi
     for i in selected:
         moved.update(wires[i].points())
     new_parts = {n: replace(p, x=p.x + dx, y=p.y + dy) for n, p in parts.items()}
+    shifted = [_shift(w, dx, dy) if i in selected else w for i, w in enumerate(wires)]
+    goes_to = {pt: (pt[0] + dx, pt[1] + dy) for pt in moved}
+    return new_parts, follow_points(tuple(shifted), goes_to, skip=selected)
+
+
+def follow_points(wires: tuple[Wire, ...], goes_to: dict[GridPoint, GridPoint],
+                  skip: Iterable[int] = ()) -> tuple[Wire, ...]:
+    """The wires after the points in ``goes_to`` moved (terminals of moved or turned parts).
+
+    A wire with both ends moving goes with them when it stays straight; a wire
+    with one end moving is stretched from its fixed end, keeping its direction,
+    with a right-angle bend where needed (bends come after all other wires, so
+    wire indices before them keep their meaning). Wires in ``skip`` are left
+    as they are (already placed by the caller).
+    """
+    skip = set(skip)
     out: list[Wire] = []
     extra: list[Wire] = []
     for i, w in enumerate(wires):
         a, b = w.ends
-        if i in selected or (a in moved and b in moved):
-            out.append(_shift(w, dx, dy))
-            continue
-        if a not in moved and b not in moved:
+        if i in skip or (a not in goes_to and b not in goes_to):
             out.append(w)
             continue
-        fixed, end = (b, a) if a in moved else (a, b)
-        goal = (end[0] + dx, end[1] + dy)
+        if a in goes_to and b in goes_to:
+            na, nb = goes_to[a], goes_to[b]
+            if na != nb and (na[0] == nb[0] or na[1] == nb[1]):
+                out.append(Wire(na[0], na[1], nb[0], nb[1]))
+            elif na != nb:
+                corner = (nb[0], na[1])
+                out.append(Wire(na[0], na[1], corner[0], corner[1]))
+                extra.append(Wire(corner[0], corner[1], nb[0], nb[1]))
+            continue
+        fixed, end = (b, a) if a in goes_to else (a, b)
+        goal = goes_to[end]
         if goal == fixed:
             continue
         if goal[0] == fixed[0] or goal[1] == fixed[1]:
@@ -147,7 +169,7 @@ def move_target(parts: dict[str, PlacedPart], wires: tuple[Wire, ...], wire_indi
         corner = (goal[0], fixed[1]) if w.y1 == w.y2 else (fixed[0], goal[1])
         out.append(Wire(fixed[0], fixed[1], corner[0], corner[1]))
         extra.append(Wire(corner[0], corner[1], goal[0], goal[1]))
-    return new_parts, tuple(out + extra)
+    return tuple(out + extra)
 
 
 def add_parts_edit(sketch: Sketch, parts: list[PlacedPart], wires: Iterable[Wire] = ()) -> Edit:
@@ -201,6 +223,21 @@ def wires_edit(sketch: Sketch, wires: Iterable[Wire]) -> Edit:
             have.add(w.normalized())
             new.append(w)
     return Edit([], before, before + tuple(new))
+
+
+def rotate_edit(sketch: Sketch, names: Iterable[str], *, mirror: bool = False) -> Edit:
+    """Turn (or mirror) the named parts about their middles; wires on their terminals follow."""
+    news, goes_to = [], {}
+    for n in names:
+        old = sketch.part(n)
+        new = rotate_target(old, mirror=mirror)
+        news.append((n, new))
+        for a, b in zip(old.terminals(), new.terminals()):
+            if a != b:
+                goes_to[a] = b
+    edit = change_edit(sketch, news)
+    before = tuple(sketch.wires)
+    return Edit(edit.parts, before, follow_points(before, goes_to))
 
 
 def rotate_target(part: PlacedPart, *, mirror: bool = False) -> PlacedPart:
