@@ -92,10 +92,12 @@ class _PartMark(QGraphicsItem):
         self.setZValue(Z_MARK)
         self.setCacheMode(CACHE)
         self.value: float | None = None
+        self._key = ""  # ``_rounded(value)``: what the text and arrow follow
         self._text = ""
         self._text_of: float | None = None  # the value ``_text`` was written for
         self._text_rect: QRectF | None = None
         self._bounds = QRectF()
+        self._visible = False  # what was last asked of setVisible (asking Qt again costs a call)
         self.setVisible(False)
 
     @property
@@ -127,13 +129,14 @@ class _PartMark(QGraphicsItem):
         """Show ``value`` (None hides the mark: no valid result)."""
         if value is None:
             self.value = None
-            self.setVisible(False)
+            self._show(False)
             return
         if value != self.value:
             old = self.value
             was_shown = old is not None
-            same_text = was_shown and _rounded(value) == _rounded(old)
-            self.value = value
+            key = _rounded(value)
+            same_text = was_shown and key == self._key
+            self.value, self._key = value, key
             if same_text:
                 if self._text_of == old:
                     self._text_of = value  # the text and the arrow stay as they are
@@ -142,13 +145,18 @@ class _PartMark(QGraphicsItem):
                 self.update()
             else:
                 self.relayout()
-        self.setVisible(self._layer_on)
+        self._show(self._layer_on)
 
     _layer_on = True
 
     def set_layer(self, on: bool) -> None:
         self._layer_on = on
-        self.setVisible(on and self.value is not None)
+        self._show(on and self.value is not None)
+
+    def _show(self, on: bool) -> None:
+        if on != self._visible:
+            self._visible = on
+            self.setVisible(on)
 
     def _format(self, value: float) -> str:
         return format_value(abs(value), self.UNIT)
@@ -267,10 +275,16 @@ class PotentialTag(QGraphicsItem):
         self.setCacheMode(CACHE)
         self.text = ""
         self.active = False
+        self.at: tuple[int, int] | None = None  # the grid point it hangs from
+        self._key: str | None = None  # ``_rounded`` of the value shown: all its text depends on
         self._rect = QRectF()
         self._corner = (-1, -1)
 
     def set_value(self, value: float) -> None:
+        key = _rounded(value)
+        if key == self._key:
+            return
+        self._key = key
         text = format_value(value, "V")
         if text != self.text:
             self.text = text
@@ -338,11 +352,17 @@ class LoopMark(QGraphicsItem):
         self.active = False
         self.home = QPointF()      # the window's centre, where the mark goes when there is room
         self.outline = QPolygonF()  # the window, in scene coordinates
+        self.source: tuple | None = None  # (centre, corners) in grid units that home and outline came from
+        self._key: str | None = None  # ``_rounded`` of the current shown: all its text depends on
         self.side = "below"
         self.compact = False
         self._text_rect = QRectF()
 
     def set_loop(self, name: str, current: float, clockwise: bool) -> None:
+        key = _rounded(current)
+        if key == self._key and name == self.name and clockwise == self.clockwise:
+            return
+        self._key = key
         text = f"{name} {format_value(current, 'A')}"
         if text == self.full_text and clockwise == self.clockwise:
             return

@@ -37,10 +37,19 @@ class ReadingsModel(QAbstractTableModel):
         self.rows: dict[str, tuple[float, float, float]] = {}
         self.effects: dict[str, tuple[str, str]] = {}  # short text, full text
         self._row_of: dict[str, int] = {}
+        self._drawn: list[str] = []  # the names in document order, as last seen
 
     def set_parts(self, sketch: Sketch) -> None:
-        """Follow the document's parts (ground symbols are left out)."""
-        names = sorted((p.name for p in sketch.parts if p.kind != "ground"), key=natural_key)
+        """Follow the document's parts (ground symbols are left out).
+
+        The rows are sorted again only when the set of names changed (a move or a new
+        value leaves them as they are).
+        """
+        drawn = [p.name for p in sketch.parts if p.kind != "ground"]
+        if drawn == self._drawn:
+            return
+        self._drawn = drawn
+        names = sorted(drawn, key=natural_key)
         if names != self.names:
             self.beginResetModel()
             self.names = names

@@ -34,6 +34,10 @@ class SketchScene(QGraphicsScene):
         self.sketch = sketch
         self.style = style
         self.part_items: dict[str, PartItem] = {}
+        self._shown: dict[str, object] = {}  # the part each item shows, by name (compared by identity)
+        self._axis: dict[str, tuple[bool, float]] = {}  # per part: horizontal, where its body lies
+        self._middle: tuple[float, float] | None = None  # the middle of the drawing labels face away from
+        self._marked: dict[str, tuple[PartItem, object]] = {}  # per part: the item and reading its marks show
         self.wire_items: list[WireItem] = []
         self._dots: list[JunctionDot] = []
         self._loose: list[LooseEnd] = []
@@ -89,36 +93,60 @@ class SketchScene(QGraphicsScene):
         return item
 
     def _sync_parts(self) -> None:
+        """Patch the part items: only parts that are new, gone or replaced are looked at in Qt."""
         items = self.part_items
+        shown = self._shown
         parts = self.sketch.parts
-        current = {p.name: p for p in parts}
-        for name in [n for n in items if n not in current]:
-            item = items.pop(name)
-            self.removeItem(item)
-        for name, part in current.items():
+        changed = [p for p in parts if shown.get(p.name) is not p]
+        fresh = sum(1 for p in changed if p.name not in shown)
+        if len(shown) - (len(parts) - fresh):  # some shown parts are gone
+            current = {p.name for p in parts}
+            for name in [n for n in shown if n not in current]:
+                del shown[name]
+                self._axis.pop(name, None)
+                self._marked.pop(name, None)
+                self.removeItem(items.pop(name))
+        for part in changed:
+            name = part.name
             item = items.get(name)
             if item is None:
-                items[name] = self._new_part_item(part)
-            elif item.part is not part:
-                if item.part.kind != part.kind:
-                    self.removeItem(item)
-                    items[name] = self._new_part_item(part)
-                else:
-                    item.set_part(part)
-        self._orient_labels(parts)
-
-    def _orient_labels(self, parts) -> None:
-        """Put each part's text on the side facing away from the middle of the drawing."""
-        if not parts:
-            return
-        cx = sum(p.x for p in parts) / len(parts)
-        cy = sum(p.y for p in parts) / len(parts)
-        for p in parts:
-            item = self.part_items[p.name]
-            if item.horizontal:
-                item.set_side(-1 if item.pos().y() + item.centre.y() <= cy * 20.0 else 1)
+                items[name] = item = self._new_part_item(part)
+            elif item.part.kind != part.kind:
+                self.removeItem(item)
+                items[name] = item = self._new_part_item(part)
             else:
-                item.set_side(1 if item.pos().x() + item.centre.x() >= cx * 20.0 else -1)
+                item.set_part(part)
+            shown[name] = part
+            self._axis[name] = self._label_axis(item)
+        self._orient_labels(parts, {p.name for p in changed})
+
+    @staticmethod
+    def _label_axis(item: PartItem) -> tuple[bool, float]:
+        """Whether the part lies horizontally, and its body's scene y (horizontal) or x (upright)."""
+        if item.horizontal:
+            return True, item.pos().y() + item.centre.y()
+        return False, item.pos().x() + item.centre.x()
+
+    def _orient_labels(self, parts, changed: set[str]) -> None:
+        """Put each part's text on the side facing away from the middle of the drawing.
+
+        Only the parts in ``changed`` are looked at unless the middle moved, and then only
+        parts whose side flips are touched.
+        """
+        if not parts:
+            self._middle = None
+            return
+        cx = sum(p.x for p in parts) / len(parts) * GRID
+        cy = sum(p.y for p in parts) / len(parts) * GRID
+        names = changed if self._middle == (cx, cy) else self._axis.keys()
+        self._middle = (cx, cy)
+        items, axis = self.part_items, self._axis
+        for name in names:
+            horizontal, at = axis[name]
+            side = (-1 if at <= cy else 1) if horizontal else (1 if at >= cx else -1)
+            item = items[name]
+            if item.side != side:
+                item.set_side(side)
 
     def _sync_wires(self) -> None:
         new = self.sketch.wires
@@ -211,18 +239,25 @@ class SketchScene(QGraphicsScene):
             self.addItem(item)
             pool.append(item)
         for item in pool[n:]:
-            item.setVisible(False)
-            item.active = False
+            if getattr(item, "active", True):
+                item.setVisible(False)
+                item.active = False
         return pool[:n]
 
     def show_connections(self, junctions: list[tuple[int, int]], open_ends: list[tuple[int, int]]) -> None:
         """Dots where three or more conductors join; rings at ends that connect to nothing."""
-        for item, p in zip(self._pool(self._dots, JunctionDot, len(junctions)), junctions):
-            item.setPos(to_scene(p))
-            item.setVisible(True)
-        for item, p in zip(self._pool(self._loose, LooseEnd, len(open_ends)), open_ends):
-            item.setPos(to_scene(p))
-            item.setVisible(True)
+        self._hang(self._pool(self._dots, JunctionDot, len(junctions)), junctions)
+        self._hang(self._pool(self._loose, LooseEnd, len(open_ends)), open_ends)
+
+    @staticmethod
+    def _hang(items: list, points: list[tuple[int, int]]) -> None:
+        """Put pooled marks on grid points, touching only those that move or come back."""
+        for item, p in zip(items, points):
+            if not getattr(item, "active", False) or item.at != p:
+                item.at = p
+                item.setPos(to_scene(p))
+                item.active = True
+                item.setVisible(True)
 
     def show_solution(self, readings: dict[str, tuple[float, float]],
                       potentials: list[tuple[tuple[int, int], float]],
@@ -233,37 +268,51 @@ class SketchScene(QGraphicsScene):
         ``readings`` maps part names to (current, drop); ``potentials`` are
         (grid point, volts) tags; ``loops`` are (grid centre, name, current, clockwise),
         ``outlines`` the corners of each loop's window (grid units), where its mark may go.
+        Only marks whose value, place or visibility changed are touched.
         """
         self._clear_fault()
         self.solved = True
+        marked = self._marked
         for name, item in self.part_items.items():
             if item.current_mark is None:
                 continue
             r = readings.get(name)
+            last = marked.get(name)
+            if last is not None and last[0] is item and last[1] == r:
+                continue
+            marked[name] = (item, r)
             item.current_mark.set_value(None if r is None else r[0])
             item.drop_mark.set_value(None if r is None else r[1])
         marks = self._pool(self._loops, LoopMark, len(loops))
+        loops_on = self.layers["loops"]
         new_homes = []
         for k, (item, (c, name, i, cw)) in enumerate(zip(marks, loops)):
-            home = QPointF(c[0] * GRID, c[1] * GRID)
-            outline = QPolygonF([QPointF(x * GRID, y * GRID) for x, y in outlines[k]]) if outlines else QPolygonF()
-            if home != item.home or outline != item.outline or not item.active:
-                item.home, item.outline = home, outline
-                item.setPos(home)
-                new_homes.append(item)
+            source = (c, outlines[k] if outlines else None)
+            if source != item.source or not item.active:
+                home = QPointF(c[0] * GRID, c[1] * GRID)
+                outline = (QPolygonF([QPointF(x * GRID, y * GRID) for x, y in outlines[k]]) if outlines
+                           else QPolygonF())
+                item.source = source
+                if home != item.home or outline != item.outline or not item.active:
+                    item.home, item.outline = home, outline
+                    item.setPos(home)
+                    new_homes.append(item)
             item.set_loop(name, i, cw)
-            item.active = True
-            item.setVisible(self.layers["loops"])
+            if not item.active:
+                item.active = True
+                item.setVisible(loops_on)
         tags = self._pool(self._tags, PotentialTag, len(potentials))
+        tags_on = self.layers["potentials"]
         moved = []
         for item, (p, v) in zip(tags, potentials):
-            pos = to_scene(p)
-            if pos != item.pos() or not item.active:
-                item.setPos(pos)
+            if p != item.at or not item.active:
+                item.at = p
+                item.setPos(to_scene(p))
                 moved.append(item)
             item.set_value(v)
-            item.active = True
-            item.setVisible(self.layers["potentials"])
+            if not item.active:
+                item.active = True
+                item.setVisible(tags_on)
         if len(tags) <= self.PLACE_TAGS_UP_TO:
             for item in moved:  # tags that stay put keep their corner
                 self._place_tag(item)
@@ -391,6 +440,7 @@ class SketchScene(QGraphicsScene):
     def clear_results(self) -> None:
         """Hide every result (they no longer match the drawing)."""
         self.solved = False
+        self._marked = {}
         for item in self.part_items.values():
             if item.current_mark is not None:
                 item.current_mark.set_value(None)

@@ -1,10 +1,11 @@
 """Live solving: sketch → netlist → solution → what the canvas and panels show.
 
-Small sketches are solved at once, inside the edit. Large ones are turned
-into a netlist on the GUI thread (the document is not shared across
-threads) and solved on a worker thread; at most one solve runs at a time,
-and a result that an edit has overtaken is dropped and the newest state
-solved instead.
+Small sketches are solved at once, inside the edit. For large ones the GUI
+thread only takes a snapshot of the parts and wires (they are immutable, so
+copying the lists is enough: the document itself is not shared across
+threads); the worker thread turns it into a netlist and solves it. At most
+one solve runs at a time, and a result that an edit has overtaken is
+dropped and the newest state solved instead.
 """
 from __future__ import annotations
 
@@ -210,20 +211,19 @@ class LiveSolver(QObject):
         return self._busy or self._pending
 
     def _start(self) -> None:
-        gen = self.generation
-        try:
-            netlist = to_circuit(self.sketch)
-        except CircuitError as e:
-            self._publish(Result(gen, error=e.message, error_parts=tuple(e.parts),
-                                 summary="Not solved: " + e.message))
-            return
         if self._pool is None:
             self._pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="loopwright-solve")
         self._busy = True
-        self._pool.submit(self._work, gen, netlist, detached(self.sketch))
+        self._pool.submit(self._work, self.generation, detached(self.sketch))
 
-    def _work(self, gen: int, netlist: Netlist, sketch: Sketch) -> None:
-        self._bridge.done.emit(_guarded(gen, netlist, sketch))
+    def _work(self, gen: int, sketch: Sketch) -> None:
+        """On the worker thread: netlist, solve and cautions of a snapshot; always answers."""
+        try:
+            result = solve_sketch(sketch, gen)
+        except Exception as e:  # a fault of ours: say so in words, and never leave the solver busy
+            msg = f"the circuit could not be read ({type(e).__name__}); please report this sketch."
+            result = Result(gen, error=msg, summary="Not solved: " + msg)
+        self._bridge.done.emit(result)
 
     def _on_done(self, result: Result) -> None:
         self._busy = False

@@ -1,0 +1,141 @@
+"""Live solving off the GUI thread, and a canvas patched from one result to the next.
+
+The worker thread builds the netlist from a snapshot and solves it; the
+scene touches only the marks whose value, place or side changed. Both must
+end in the same state as doing everything afresh.
+"""
+from __future__ import annotations
+
+import os
+import random
+from dataclasses import replace
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import app.ui  # noqa: E402,F401  (before Qt: see app/ui/__init__.py)
+import pytest  # noqa: E402
+
+pytest.importorskip("pytestqt")
+
+from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
+from app.ui.scene import SketchScene  # noqa: E402
+from app.ui.solve_worker import LiveSolver, solve_sketch  # noqa: E402
+
+
+def series(r1: float = 100.0) -> Sketch:
+    """A 12 V cell with 0.5 Ω inside, feeding R1 and 200 Ω in series."""
+    s = Sketch()
+    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 12.0, "internal_resistance": 0.5}))
+    s.add_part(PlacedPart("resistor", "R1", 0, 0, 0, False, {"resistance": r1}))
+    s.add_part(PlacedPart("resistor", "R2", 4, 0, 90, False, {"resistance": 200.0}))
+    s.add_wire(Wire(0, 4, 4, 4))
+    s.add_part(PlacedPart("ground", "GND1", 0, 4))
+    return s
+
+
+def lattice(rows: int, cols: int) -> Sketch:
+    """Resistors joined at their terminals on a grid, fed by a cell in the top-left corner."""
+    s = Sketch()
+    k = 0
+    for r in range(rows):
+        for c in range(cols - 1):
+            k += 1
+            s.add_part(PlacedPart("resistor", f"R{k}", 4 * c, 4 * r, 0, False, {"resistance": 100.0 * k}))
+    for r in range(rows - 1):
+        for c in range(cols):
+            if (r, c) == (0, 0):
+                s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 9.0, "internal_resistance": 1.0}))
+                continue
+            k += 1
+            s.add_part(PlacedPart("resistor", f"R{k}", 4 * c, 4 * r, 90, False, {"resistance": 100.0 * k}))
+    s.add_part(PlacedPart("ground", "GND1", 0, 4))
+    return s
+
+
+@pytest.fixture
+def threaded(qtbot):
+    """A solver that sends every sketch to its worker thread."""
+    made = []
+
+    def make(sketch: Sketch) -> LiveSolver:
+        solver = LiveSolver(sketch, threaded_from=0)
+        made.append(solver)
+        return solver
+
+    yield make
+    for solver in made:
+        solver.shutdown()
+
+
+def test_the_worker_builds_the_netlist_and_solves_it(qtbot, threaded):
+    solver = threaded(series())
+    with qtbot.waitSignal(solver.resultReady, timeout=10000) as got:
+        solver.request()
+    result = got.args[0]
+    # Ohm's law around the one loop: I = EMF / (r + R1 + R2) = 12 / 300.5 A
+    assert abs(result.readings["R1"][0]) == pytest.approx(12.0 / 300.5, rel=1e-9)
+    assert abs(result.readings["R2"][1]) == pytest.approx(200.0 * 12.0 / 300.5, rel=1e-9)
+    assert not solver.busy
+
+
+def test_edits_during_a_solve_end_in_the_newest_state(qtbot, threaded):
+    sketch = series()
+    solver = threaded(sketch)
+    seen = []
+    solver.resultReady.connect(seen.append)
+    for r1 in (150.0, 250.0, 400.0):
+        sketch.update_part("R1", values={"resistance": r1})
+        solver.request()
+    qtbot.waitUntil(lambda: not solver.busy and seen and seen[-1].generation == solver.generation, timeout=10000)
+    # only the newest state is shown: I = 12 / (0.5 + 400 + 200) A (Ohm's law)
+    assert abs(seen[-1].readings["R1"][0]) == pytest.approx(12.0 / 600.5, rel=1e-9)
+    assert [r.generation for r in seen] == sorted(r.generation for r in seen)
+
+
+def test_a_sketch_the_netlist_refuses_is_reported_from_the_worker(qtbot, threaded):
+    sketch = series()
+    sketch.add_part(PlacedPart("resistor", "~R9", 20, 20, 0, False, {"resistance": 10.0}))
+    solver = threaded(sketch)
+    with qtbot.waitSignal(solver.resultReady, timeout=10000) as got:
+        solver.request()
+    result = got.args[0]
+    assert result.error and "~R9" in result.error
+    assert result.error_parts == ("~R9",)
+    assert not solver.busy
+
+
+def _state(scene: SketchScene):
+    """What a person sees: per part its text side and shown marks, plus the visible tags and loop marks."""
+    parts = {}
+    for name, item in scene.part_items.items():
+        marks = tuple((m.isVisible(), m.text if m.isVisible() else "", m.boundingRect().getRect())
+                      for m in (item.current_mark, item.drop_mark) if m is not None)
+        parts[name] = (item.side, marks)
+    tags = sorted((t.pos().x(), t.pos().y(), t.text) for t in scene._tags if t.isVisible())
+    loops = sorted((m.home.x(), m.home.y(), m.full_text, m.clockwise) for m in scene._loops if m.isVisible())
+    return parts, tags, loops
+
+
+def test_a_patched_canvas_matches_one_drawn_afresh(qtbot):
+    """After a run of random moves and new values, each shown with its solution, the canvas
+    reads exactly as a new scene given the last sketch and its solution."""
+    rng = random.Random(7)
+    sketch = lattice(4, 5)
+    scene = SketchScene(sketch)
+    scene.show_result(solve_sketch(sketch))
+    names = [p.name for p in sketch.parts if p.kind == "resistor"]
+    for step in range(40):
+        name = rng.choice(names)
+        part = sketch.part(name)
+        if rng.random() < 0.5:
+            sketch.replace_part(name, replace(part, x=part.x + rng.choice((-6, -1, 1, 6)),
+                                              y=part.y + rng.choice((-6, 0, 1, 6))))
+        else:
+            sketch.replace_part(name, replace(part, values={"resistance": rng.choice((1.0, 47.0, 1e3, 1e6))}))
+        result = solve_sketch(sketch)
+        if step % 13 == 5:
+            scene.show_fault("a test fault", [name])  # marks hidden in between must come back
+        scene.show_result(result)
+        fresh = SketchScene(sketch)
+        fresh.show_result(result)
+        assert _state(scene) == _state(fresh), f"step {step}"
