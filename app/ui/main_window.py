@@ -7,12 +7,12 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-from PySide6.QtCore import QItemSelection, QItemSelectionModel, QSettings, Qt, QTimer
+from PySide6.QtCore import QItemSelection, QItemSelectionModel, QSettings, Qt, QTimer, Signal
 from PySide6.QtGui import QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QUndoStack
 from PySide6.QtWidgets import (QApplication, QDockWidget, QFileDialog, QLabel, QMainWindow,
                                QMessageBox, QToolBar, QToolButton, QVBoxLayout, QWidget)
 
-from ..sketch.fileio import SketchFileError, load_sketch, save_sketch
+from ..sketch.fileio import SaveError, SketchFileError, load_sketch, save_sketch
 from ..sketch.kinds import KINDS
 from ..sketch.model import Sketch
 from .annotations import LAYERS
@@ -23,6 +23,7 @@ from .icons import tool_icon
 from .properties import InlineValueEditor, PartPanel
 from .readings import ReadingsModel, ReadingsView
 from .scene import SketchScene
+from .session import start
 from .shot import render_scene
 from .solve_worker import LiveSolver, Result
 from .symbols import IEC, IEEE, STYLED_KINDS, STYLES
@@ -58,6 +59,9 @@ def _demo_dir() -> Path:
 
 class MainWindow(QMainWindow):
     """One sketch in a window. ``settings`` defaults to the user's Loopwright settings."""
+
+    documentReplaced = Signal()  # another sketch (new, opened, restored) took the window's place
+    closed = Signal()            # the window was closed (its sketch saved, discarded or unchanged)
 
     def __init__(self, settings: QSettings | None = None) -> None:
         super().__init__()
@@ -298,6 +302,7 @@ class MainWindow(QMainWindow):
         self._update_title()
         self._document_changed()
         QTimer.singleShot(0, self.view.zoom_fit)
+        self.documentReplaced.emit()
 
     def _clean_changed(self, clean: bool) -> None:
         self.setWindowModified(not clean)
@@ -554,6 +559,9 @@ class MainWindow(QMainWindow):
         path = Path(path)
         try:
             save_sketch(self.sketch, path)
+        except SaveError as e:  # one plain sentence naming the file; the file on disk is untouched
+            self.tell("Cannot save the sketch", str(e))
+            return False
         except (SketchFileError, OSError) as e:
             self.tell("Cannot save the sketch", f"{path.name}: {getattr(e, 'strerror', None) or e}")
             return False
@@ -613,6 +621,7 @@ class MainWindow(QMainWindow):
         self.settings.setValue("window_state", self.saveState())
         self.solver.shutdown()
         event.accept()
+        self.closed.emit()
 
 
 def run(path: str | None = None) -> int:
@@ -620,8 +629,7 @@ def run(path: str | None = None) -> int:
     app = QApplication.instance() or QApplication(sys.argv[:1])
     app.setApplicationName("Loopwright")
     app.setOrganizationName("Loopwright")
-    win = MainWindow()
-    if path is not None and not win.open_path(path, ask=False):
+    windows = start(MainWindow, path)
+    if not windows:
         return 2
-    win.show()
     return app.exec()
