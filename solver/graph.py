@@ -12,7 +12,7 @@ import networkx as nx
 import numpy as np
 from scipy.sparse import coo_matrix, csgraph
 
-from .circuit import CELL, CURRENT_SOURCE, RESISTOR, Circuit
+from .circuit import CELL, CURRENT_SOURCE, Circuit
 
 __all__ = ["Topology", "contract", "Forest", "bfs_forest", "spanning_forest", "least_resistance_forest", "component_roots",
            "accumulate_to_root", "subtree_sums", "multigraph"]

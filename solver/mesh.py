@@ -79,7 +79,7 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
     check_ideal_cells(topo)
     check_current_sources(topo)
 
-    n, nb = topo.n_nodes, topo.n_branches
+    n = topo.n_nodes
     ground_node = topo.node_of_point[topo.point_index[ground]] if ground is not None else -1
     preferred = _preferred_references(topo, ground_node)
     label, roots = component_roots(n, topo.br_u, topo.br_v, preferred)

@@ -2,19 +2,18 @@
 Equations panel's selection both ways, loops traced on the canvas."""
 from __future__ import annotations
 
-import shutil
 from pathlib import Path
 
 import pytest
 
 pytest.importorskip("pytestqt")
 
-from PySide6.QtCore import QPointF, QSettings, Qt  # noqa: E402
+from PySide6.QtCore import Qt  # noqa: E402
 from PySide6.QtGui import QGuiApplication  # noqa: E402
 
 from app.sketch.fileio import load_sketch  # noqa: E402
 from app.sketch.model import BranchTag  # noqa: E402
-from app.ui.main_window import MainWindow  # noqa: E402
+from ui_support import open_window  # noqa: E402
 
 FIXTURE = Path(__file__).resolve().parent.parent / "demo_circuits" / "bench_supply_fixture.lwsk"
 # The fixture: B1 (12 V, 0.05 Ω) feeds R1 47 Ω into a top-right junction; R2 100 Ω drops to the bottom
@@ -23,19 +22,7 @@ FIXTURE = Path(__file__).resolve().parent.parent / "demo_circuits" / "bench_supp
 
 @pytest.fixture
 def win(qtbot, tmp_path):
-    w = MainWindow(QSettings(str(tmp_path / "settings.ini"), QSettings.Format.IniFormat))
-    w.ask_to_save = lambda: "discard"
-    w.tell = lambda title, message: pytest.fail(message)
-    qtbot.addWidget(w)
-    w.resize(1400, 900)
-    w.show()
-    qtbot.waitExposed(w)
-    path = tmp_path / "fixture.lwsk"
-    shutil.copy(FIXTURE, path)
-    assert w.open_path(path)
-    w.view.resetTransform()
-    w.view.centerOn(QPointF(90, 50))
-    return w
+    return open_window(qtbot, tmp_path, FIXTURE, size=(1400, 900), centre=(90, 50), name="fixture.lwsk")
 
 
 def at(win, name: str):

@@ -10,14 +10,12 @@ import pytest
 
 pytest.importorskip("pytestqt")
 
-from PySide6.QtCore import QPoint, QPointF, QSettings, Qt  # noqa: E402
-from PySide6.QtWidgets import QApplication  # noqa: E402
+from PySide6.QtCore import QPoint, QPointF, Qt  # noqa: E402
 
 from app.assess import DISCLAIMER  # noqa: E402
-from app.sketch.fileio import save_sketch  # noqa: E402
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
 from app.ui.bench_marks import Badge, MeterFace  # noqa: E402
-from app.ui.main_window import MainWindow  # noqa: E402
+from ui_support import open_window as open_bench_window  # noqa: E402
 
 
 def supply_with_a_gap() -> Sketch:
@@ -45,24 +43,8 @@ def divider() -> Sketch:
     return s
 
 
-def open_window(qtbot, tmp_path, sketch: Sketch) -> MainWindow:
-    w = MainWindow(QSettings(str(tmp_path / "settings.ini"), QSettings.Format.IniFormat))
-    w.ask_to_save = lambda: "discard"
-    w.tell = lambda title, message: pytest.fail(message)
-    qtbot.addWidget(w)
-    w.resize(1200, 800)
-    w.show()
-    w.activateWindow()
-    for _ in range(100):  # shortcut keys reach the window's actions once it is active
-        QApplication.processEvents()
-        if QApplication.activeWindow() is w:
-            break
-    assert QApplication.activeWindow() is w
-    path = tmp_path / "bench.lwsk"
-    save_sketch(sketch, path)
-    assert w.open_path(path)
-    w.view.resetTransform()
-    w.view.centerOn(QPointF(80, 40))
+def open_window(qtbot, tmp_path, sketch: Sketch):
+    w = open_bench_window(qtbot, tmp_path, sketch, size=(1200, 800), centre=(80, 40), active=True, name="bench.lwsk")
     w.view.setFocus()
     return w
 

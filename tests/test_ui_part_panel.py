@@ -5,12 +5,11 @@ import pytest
 
 pytest.importorskip("pytestqt")
 
-from PySide6.QtCore import QCoreApplication, QPoint, QPointF, QSettings, Qt  # noqa: E402
+from PySide6.QtCore import QCoreApplication, QPoint, QPointF, Qt  # noqa: E402
 
 from app.sketch.bench_parts import CELL_PRESETS  # noqa: E402
-from app.sketch.fileio import save_sketch  # noqa: E402
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
-from app.ui.main_window import MainWindow  # noqa: E402
+from ui_support import open_window  # noqa: E402
 
 
 def bench() -> Sketch:
@@ -25,18 +24,7 @@ def bench() -> Sketch:
 
 @pytest.fixture
 def win(qtbot, tmp_path):
-    w = MainWindow(QSettings(str(tmp_path / "settings.ini"), QSettings.Format.IniFormat))
-    w.ask_to_save = lambda: "discard"
-    w.tell = lambda title, message: pytest.fail(message)
-    qtbot.addWidget(w)
-    w.show()
-    qtbot.waitExposed(w)
-    path = tmp_path / "bench.lwsk"
-    save_sketch(bench(), path)
-    assert w.open_path(path)
-    w.view.resetTransform()
-    w.view.centerOn(QPointF(40, 40))
-    return w
+    return open_window(qtbot, tmp_path, bench(), name="bench.lwsk")
 
 
 def click_part(qtbot, win, scene_point: QPointF) -> None:

@@ -7,13 +7,13 @@ import pytest
 
 pytest.importorskip("pytestqt")
 
-from PySide6.QtCore import QItemSelectionModel, QPointF, QSettings, Qt  # noqa: E402
+from PySide6.QtCore import QItemSelectionModel, QPointF, Qt  # noqa: E402
 from PySide6.QtGui import QImage  # noqa: E402
 
 from app.sketch.fileio import save_sketch  # noqa: E402
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
-from app.ui.main_window import MainWindow  # noqa: E402
 from app.ui.shot import render  # noqa: E402
+from ui_support import open_window  # noqa: E402
 
 
 def one_loop() -> Sketch:
@@ -28,18 +28,7 @@ def one_loop() -> Sketch:
 
 @pytest.fixture
 def win(qtbot, tmp_path):
-    w = MainWindow(QSettings(str(tmp_path / "settings.ini"), QSettings.Format.IniFormat))
-    w.ask_to_save = lambda: "discard"
-    w.tell = lambda title, message: pytest.fail(message)
-    qtbot.addWidget(w)
-    w.show()
-    qtbot.waitExposed(w)
-    path = tmp_path / "loop.lwsk"
-    save_sketch(one_loop(), path)
-    assert w.open_path(path)
-    w.view.resetTransform()
-    w.view.centerOn(QPointF(40, 40))
-    return w
+    return open_window(qtbot, tmp_path, one_loop(), name="loop.lwsk")
 
 
 def test_selecting_on_the_canvas_selects_the_row_and_the_reverse(qtbot, win):

@@ -1,0 +1,48 @@
+"""Opening the window for pytest-qt tests: private settings, no prompts, a sketch on the canvas."""
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+from PySide6.QtCore import QPointF, QSettings
+from PySide6.QtWidgets import QApplication
+
+from app.sketch.fileio import save_sketch
+from app.sketch.model import Sketch
+from app.ui.main_window import MainWindow
+
+
+def open_window(qtbot, tmp_path: Path, sketch: Sketch | Path | None = None, *, size=None,
+                centre=(40.0, 40.0), active: bool = False, name: str = "sketch.lwsk") -> MainWindow:
+    """A window with its own settings file that discards on close and fails the test on any message.
+
+    ``sketch`` (a Sketch, or the path of a file to copy) is saved as ``tmp_path / name`` and opened;
+    ``size`` (width, height) resizes the window first;
+    ``active`` waits until the window is the active one, so shortcut keys reach its actions.
+    """
+    w = MainWindow(QSettings(str(tmp_path / "settings.ini"), QSettings.Format.IniFormat))
+    w.ask_to_save = lambda: "discard"
+    w.tell = lambda title, message: pytest.fail(message)
+    qtbot.addWidget(w)
+    if size is not None:
+        w.resize(*size)
+    w.show()
+    if active:
+        w.activateWindow()
+        for _ in range(100):
+            QApplication.processEvents()
+            if QApplication.activeWindow() is w:
+                break
+        assert QApplication.activeWindow() is w
+    else:
+        qtbot.waitExposed(w)
+    if sketch is not None:
+        path = tmp_path / name
+        if isinstance(sketch, Path):
+            path.write_bytes(sketch.read_bytes())
+        else:
+            save_sketch(sketch, path)
+        assert w.open_path(path)
+    w.view.resetTransform()
+    w.view.centerOn(QPointF(*centre))
+    return w
