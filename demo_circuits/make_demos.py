@@ -136,7 +136,7 @@ DEMOS = {
 
 def main() -> None:
     for name, make in DEMOS.items():
-        save_sketch(make(), HERE / name)
+        save_sketch(make(), HERE / name, backup=False)  # no .bak beside the demos
         print("wrote", name)
 
 
