@@ -21,6 +21,7 @@ from ..assess import Caution
 from ..sketch.model import Sketch
 from ..sketch.netlist import Netlist, to_circuit
 from .bench_results import assess_result, detached
+from .heap import settle
 from ..units import format_value
 
 __all__ = ["Result", "LiveSolver", "solve_sketch", "HAZARD_VOLTS"]
@@ -191,6 +192,7 @@ class LiveSolver(QObject):
         self.latest: Result | None = None
         self._busy = False
         self._pending = False
+        self._settled = False
         self._pool: ThreadPoolExecutor | None = None
         self._bridge = _Bridge()
         self._bridge.done.connect(self._on_done)
@@ -236,6 +238,9 @@ class LiveSolver(QObject):
     def _publish(self, result: Result) -> None:
         self.latest = result
         self.resultReady.emit(result)
+        if not self._settled:  # the document and its first solution are on the window: freeze them
+            self._settled = True
+            settle(len(self.sketch.parts))
 
     def shutdown(self) -> None:
         """Stop the worker thread (results still running are dropped)."""
