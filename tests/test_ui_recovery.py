@@ -296,3 +296,15 @@ def test_the_app_killed_after_an_edit_gives_the_edit_back(qtbot, make_window, tm
         assert win.sketch != trailer_lights() and win.modified and win.path == own
     finally:
         store.close()
+
+
+def test_an_unusable_recovery_folder_turns_recovery_off_and_says_so(qtbot, make_window, tmp_path, monkeypatch):
+    blocker = tmp_path / "a file"
+    blocker.write_text("not a folder")
+    monkeypatch.setenv("LOOPWRIGHT_RECOVERY_DIR", str(blocker / "recovery"))
+    (win,) = start(make_window)
+    assert autosaver_of(win) is None
+    assert win.hint_text.text() == (f"Crash recovery is off: the folder {blocker / 'recovery'} cannot be used "
+                                    "(part of the path is not a folder).")
+    win.editor.place("resistor", 0, 0)  # the window works on without copies
+    assert win.modified

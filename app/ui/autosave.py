@@ -41,25 +41,28 @@ def _seconds(variable: str, default: float) -> float:
     return value if math.isfinite(value) and value > 0 else default
 
 
-def recovery_folder() -> Path:
+def recovery_folder() -> Path | None:
     """Where recovery copies are kept: ``LOOPWRIGHT_RECOVERY_DIR`` or ``<AppData>/recovery``.
 
-    Call after the QApplication has its organisation and application names.
+    None when the system names no per-user data folder.  Call after the
+    QApplication has its organisation and application names.
     """
     chosen = os.environ.get("LOOPWRIGHT_RECOVERY_DIR")
     if chosen:
         return Path(chosen)
     base = QStandardPaths.writableLocation(QStandardPaths.StandardLocation.AppDataLocation)
-    return Path(base) / "recovery"
+    return Path(base) / "recovery" if base else None
 
 
 def open_store(folder: Path | None = None) -> tuple[RecoveryStore | None, str]:
     """The program's recovery store, or None and a plain reason when its folder cannot be used."""
     folder = folder if folder is not None else recovery_folder()
+    if folder is None:
+        return None, "Crash recovery is off: the system names no folder for this program's data."
     try:
         return RecoveryStore(folder), ""
-    except (SaveError, ValueError) as e:
-        return None, f"Crash recovery is off: {e}"
+    except SaveError as e:
+        return None, f"Crash recovery is off: the folder {folder} cannot be used ({e.reason})."
 
 
 class Autosaver(QObject):
