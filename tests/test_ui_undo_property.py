@@ -106,7 +106,7 @@ def do_step(win: MainWindow, step: tuple) -> None:
         elif op == "choice" and spec.choices:
             field = spec.choices[0]
             ed.set_choice(one, field.key, field.keys[step[2] % len(field.keys)])
-        elif op == "rename" and f"X{step[2]}" not in sk._tags:  # a deleted part's tag: see the xfail below
+        elif op == "rename":
             try:
                 ed.rename(one, f"X{step[2]}")
             except ValueError:
@@ -172,8 +172,6 @@ def test_a_merged_drag_and_a_drag_back_to_the_start(win):
 
 
 
-@pytest.mark.xfail(strict=True, reason="known bug: a deleted part's tag waits in the sketch under the part's "
-                   "name, and a part renamed to that name takes it over; undo then leaves it on that part")
 def test_a_deleted_parts_tag_stays_with_it(win):
     win.set_document(start_sketch(), None)
     assert win.hand.tag_part("R1", "I1")

@@ -149,6 +149,7 @@ class Sketch:
         self._parts: dict[str, PlacedPart] = {}
         self._wires: list[Wire] = []
         self._tags: dict[str, BranchTag] = {}     # by anchoring part
+        self._set_aside: list[tuple[PlacedPart, BranchTag]] = []  # tags of deleted parts, for undo
         self._checks: list[SavedCheck] = []
         self._listeners: list[Listener] = []
 
@@ -174,16 +175,15 @@ class Sketch:
     def tags(self) -> list[BranchTag]:
         """The current tags on parts that exist, in order of their names.
 
-        A tag whose part was deleted is kept out of sight (and out of files)
-        so that undoing the deletion brings it back with the part.
+        A deleted part's tag is put aside with that very part object, so that
+        undoing the deletion (which adds the same object back) brings it back;
+        a new or renamed part of the same name never takes it over.
         """
-        live = [t for t in self._tags.values() if t.part in self._parts]
-        return sorted(live, key=lambda t: (t.name, t.part))
+        return sorted(self._tags.values(), key=lambda t: (t.name, t.part))
 
     def tag_on(self, part: str) -> BranchTag | None:
         """The tag anchored on ``part``, if any."""
-        tag = self._tags.get(part)
-        return tag if tag is not None and part in self._parts else None
+        return self._tags.get(part)
 
     @property
     def checks(self) -> list[SavedCheck]:
@@ -198,7 +198,7 @@ class Sketch:
     def next_name(self, kind: str) -> str:
         """The next free reference designator for ``kind`` (R1, R2, …)."""
         prefix = kind_spec(kind).prefix or "GND"
-        used = {p.name for p in self._parts.values()} | set(self._tags)  # a deleted part's tag waits for undo
+        used = set(self._parts)
         n = 1
         while f"{prefix}{n}" in used:
             n += 1
@@ -217,12 +217,20 @@ class Sketch:
             items = list(self._parts.items())
             items.insert(index, (part.name, part))
             self._parts = dict(items)
+        for k, (kept, tag) in enumerate(self._set_aside):
+            if kept is part:  # the very part deleted before: its tag comes back with it
+                self._tags[part.name] = tag
+                del self._set_aside[k]
+                break
         self._changed()
 
     def remove_part(self, name: str) -> tuple[PlacedPart, int]:
         """Remove the part called ``name``; returns it and its former index."""
         index = list(self._parts).index(name)
         part = self._parts.pop(name)
+        tag = self._tags.pop(name, None)
+        if tag is not None:
+            self._set_aside.append((part, tag))
         self._changed()
         return part, index
 
@@ -300,6 +308,7 @@ class Sketch:
         self._parts.clear()
         self._wires.clear()
         self._tags.clear()
+        self._set_aside.clear()
         self._checks.clear()
         self._changed()
 
