@@ -43,10 +43,12 @@ class RecoveryDialog(QDialog):
         lay = QVBoxLayout(self)
         n = len(found.copies)
         if n:
-            lay.addWidget(QLabel(
+            intro = QLabel(
                 f"Loopwright ended last time before {'this sketch was' if n == 1 else f'these {n} sketches were'} "
                 "saved. The changes were kept in a recovery copy. Restore opens a sketch as unsaved; "
-                "save it to keep it."))
+                "save it to keep it.")
+            intro.setWordWrap(True)
+            lay.addWidget(intro)
         self.table = QTreeWidget()
         self.table.setRootIsDecorated(False)
         self.table.setHeaderLabels(["Sketch", "Written", "File", "What to do"])
