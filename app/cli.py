@@ -16,6 +16,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
 import sys
 
 from solver import CircuitError, solve
@@ -173,6 +174,11 @@ def main(argv: list[str] | None = None) -> int:
         where = f" [parts: {', '.join(named)}]" if named else ""
         print(f"loopwright: the circuit cannot be solved: {exc}{where}", file=sys.stderr)
         return EXIT_CIRCUIT
+    except BrokenPipeError:
+        # the reader went away (e.g. `loopwright solve F | head`): stop quietly, as Unix tools do
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        return EXIT_OK
 
 
 if __name__ == "__main__":

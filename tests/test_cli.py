@@ -98,3 +98,12 @@ def test_console_script_runs_as_a_module(tmp_path):
                        capture_output=True, text=True, timeout=120)
     assert r.returncode == 0, r.stderr
     assert "parts" in json.loads(r.stdout)
+
+
+def test_output_cut_short_by_the_reader_ends_quietly():
+    # `loopwright solve FILE | head`: the reader closes the pipe early; no traceback, status 0
+    demo = DEMOS[0].parent / "greenhouse_heater_strip.lwsk"
+    r = subprocess.run(f"'{sys.executable}' -m app.cli solve '{demo}' | head -n 2", shell=True,
+                       capture_output=True, text=True, timeout=120)
+    assert "Traceback" not in r.stderr
+    assert r.stdout.count("\n") == 2
