@@ -139,3 +139,42 @@ def test_a_patched_canvas_matches_one_drawn_afresh(qtbot):
         fresh = SketchScene(sketch)
         fresh.show_result(result)
         assert _state(scene) == _state(fresh), f"step {step}"
+
+
+def test_marks_changed_while_too_small_to_read_are_right_once_zoomed_in(qtbot):
+    """Marks too small to draw skip their repaint; zooming in must still show the newest values,
+    pixel for pixel as a view that only ever showed them."""
+    from PySide6.QtWidgets import QGraphicsView
+
+    sketch = lattice(3, 4)
+    first = solve_sketch(sketch)
+    part = sketch.part("R5")
+    sketch.replace_part("R5", replace(part, values={"resistance": 3.3}))
+    second = solve_sketch(sketch)
+
+    def view_of(scene: SketchScene) -> QGraphicsView:
+        view = QGraphicsView(scene)
+        view.resize(700, 500)
+        view.setCacheMode(QGraphicsView.CacheModeFlag.CacheNone)
+        qtbot.addWidget(view)
+        view.show()
+        qtbot.waitExposed(view)
+        return view
+
+    patched = SketchScene(sketch)
+    seen = view_of(patched)
+    seen.scale(0.2, 0.2)
+    patched.show_result(first)
+    seen.viewport().grab()  # the marks keep (empty) pictures of themselves at this zoom
+    assert not patched.marks_readable()
+    patched.show_result(second)
+    seen.viewport().grab()
+    seen.resetTransform()
+    seen.centerOn(120, 80)
+    assert patched.marks_readable()
+
+    fresh = SketchScene(sketch)
+    fresh.show_result(second)
+    other = view_of(fresh)
+    other.centerOn(120, 80)
+    assert seen.viewport().grab().toImage() == other.viewport().grab().toImage()

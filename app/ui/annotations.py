@@ -125,8 +125,13 @@ class _PartMark(QGraphicsItem):
             self._text_rect = o.line_rect(self.LINE, w)
         return self._text_rect
 
-    def set_value(self, value: float | None) -> None:
-        """Show ``value`` (None hides the mark: no valid result)."""
+    def set_value(self, value: float | None, readable: bool = True) -> None:
+        """Show ``value`` (None hides the mark: no valid result).
+
+        ``readable`` False says no view shows marks large enough to draw (they paint nothing
+        then), so a new text in the same box asks for no repaint: a change of zoom redraws
+        the item's picture anyway.
+        """
         if value is None:
             self.value = None
             self._show(False)
@@ -142,7 +147,8 @@ class _PartMark(QGraphicsItem):
                     self._text_of = value  # the text and the arrow stay as they are
             elif was_shown and _fits_slot(value):
                 self._text_rect = None
-                self.update()
+                if readable:
+                    self.update()
             else:
                 self.relayout()
         self._show(self._layer_on)
@@ -358,7 +364,8 @@ class LoopMark(QGraphicsItem):
         self.compact = False
         self._text_rect = QRectF()
 
-    def set_loop(self, name: str, current: float, clockwise: bool) -> None:
+    def set_loop(self, name: str, current: float, clockwise: bool, readable: bool = True) -> None:
+        """Show the loop's name and current (``readable``: as for ``_PartMark.set_value``)."""
         key = _rounded(current)
         if key == self._key and name == self.name and clockwise == self.clockwise:
             return
@@ -370,7 +377,7 @@ class LoopMark(QGraphicsItem):
         self.name = name
         self.full_text = text
         self.setToolTip(f"Loop current {text}")
-        self.set_layout(self.side, self.compact)
+        self.set_layout(self.side, self.compact, readable)
 
     def text_rect_at(self, side: str, compact: bool) -> QRectF:
         """The text's box for a layout, around the arrow at the origin."""
@@ -393,12 +400,16 @@ class LoopMark(QGraphicsItem):
         r = self._radius(compact) + 4
         return QRectF(-r, -r, 2 * r, 2 * r).united(self.text_rect_at(side, compact))
 
-    def set_layout(self, side: str, compact: bool) -> None:
-        self.prepareGeometryChange()
+    def set_layout(self, side: str, compact: bool, readable: bool = True) -> None:
+        """Lay the text out on ``side`` (``compact``: the name alone); the box changes only if it must."""
+        rect = self.text_rect_at(side, compact)
+        if rect != self._text_rect:
+            self.prepareGeometryChange()
+            self._text_rect = rect
         self.side, self.compact = side, compact
         self.text = self.name if compact else self.full_text
-        self._text_rect = self.text_rect_at(side, compact)
-        self.update()
+        if readable:
+            self.update()
 
     def boundingRect(self) -> QRectF:
         r = self._radius(self.compact) + 4

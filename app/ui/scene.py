@@ -13,11 +13,11 @@ from contextlib import contextmanager
 import numpy as np
 from PySide6.QtCore import QPointF, QRectF, Qt, Signal
 from PySide6.QtGui import QPolygonF
-from PySide6.QtWidgets import QGraphicsScene
+from PySide6.QtWidgets import QGraphicsScene, QStyleOptionGraphicsItem
 
 from ..sketch.model import Sketch
 from .annotations import CurrentMark, DropMark, FaultNote, LoopMark, PotentialTag
-from .items import JunctionDot, LooseEnd, PartItem, WireItem, to_scene
+from .items import TEXT_LOD, JunctionDot, LooseEnd, PartItem, WireItem, to_scene
 from .symbols import IEC
 from .theme import GRID
 
@@ -272,6 +272,7 @@ class SketchScene(QGraphicsScene):
         """
         self._clear_fault()
         self.solved = True
+        readable = self.marks_readable()
         marked = self._marked
         for name, item in self.part_items.items():
             if item.current_mark is None:
@@ -281,8 +282,8 @@ class SketchScene(QGraphicsScene):
             if last is not None and last[0] is item and last[1] == r:
                 continue
             marked[name] = (item, r)
-            item.current_mark.set_value(None if r is None else r[0])
-            item.drop_mark.set_value(None if r is None else r[1])
+            item.current_mark.set_value(None if r is None else r[0], readable)
+            item.drop_mark.set_value(None if r is None else r[1], readable)
         marks = self._pool(self._loops, LoopMark, len(loops))
         loops_on = self.layers["loops"]
         new_homes = []
@@ -297,7 +298,7 @@ class SketchScene(QGraphicsScene):
                     item.home, item.outline = home, outline
                     item.setPos(home)
                     new_homes.append(item)
-            item.set_loop(name, i, cw)
+            item.set_loop(name, i, cw, readable)
             if not item.active:
                 item.active = True
                 item.setVisible(loops_on)
@@ -321,6 +322,12 @@ class SketchScene(QGraphicsScene):
                 self._place_loop(item)
 
     PLACE_TAGS_UP_TO = 400
+
+    def marks_readable(self) -> bool:
+        """False when every view shows the drawing too small for marks to be drawn (``too_small``)."""
+        views = self.views()
+        return not views or any(
+            QStyleOptionGraphicsItem.levelOfDetailFromTransform(v.transform()) >= TEXT_LOD for v in views)
 
     def _place_tag(self, tag: PotentialTag) -> None:
         """Hang a potential tag towards the corner where it covers the least text or symbol."""
