@@ -18,7 +18,7 @@ import pytest
 from hypothesis import HealthCheck, assume, given, note, settings
 from hypothesis import strategies as st
 
-from reference_nodal import SingularCircuit, nodal_solve
+from reference_nodal import ReferenceFailed, SingularCircuit, nodal_solve
 from solver import Circuit, CircuitError, IllConditionedError, solve
 
 # ---------------------------------------------------------------------------
@@ -805,10 +805,12 @@ def test_random_wide_range_circuits_keep_the_laws(case):
         regular = True
     except SingularCircuit:
         regular = False
+    except ReferenceFailed:
+        regular = None   # regular by topology, but beyond what nodal analysis resolves: laws only
     try:
         sol = solve(c, ground=ground)
     except CircuitError as e:
-        assert not regular or isinstance(e, IllConditionedError), f"{e}\n{_describe(c, ground)}"
+        assert regular is False or isinstance(e, IllConditionedError), f"{e}\n{_describe(c, ground)}"
         return
-    assert regular, f"solver accepted a singular circuit\n{_describe(c, ground)}"
+    assert regular is not False, f"solver accepted a singular circuit\n{_describe(c, ground)}"
     check_laws(c, sol)
