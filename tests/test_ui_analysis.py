@@ -13,6 +13,7 @@ from PySide6.QtGui import QGuiApplication  # noqa: E402
 
 from app.sketch.fileio import load_sketch  # noqa: E402
 from app.sketch.model import BranchTag  # noqa: E402
+from app.ui.readings import BRANCH  # noqa: E402
 from ui_support import open_window  # noqa: E402
 
 FIXTURE = Path(__file__).resolve().parent.parent / "demo_circuits" / "bench_supply_fixture.lwsk"
@@ -57,6 +58,15 @@ def test_tags_on_the_canvas_then_a_right_and_a_wrong_equation_in_the_check_panel
     assert win.sketch.tags == [BranchTag("Ia", "R1", True), BranchTag("Ib", "R2", True)]
     assert set(win.hand.layer.marks) == {"R1", "R2"} and win.hand.layer.marks["R2"].isVisible()
     assert win.isWindowModified()
+    # Readings name each part's current by its branch: R1 carries Ia as tagged; B1, in series with R1,
+    # passes Ia from its minus to its plus terminal, against its own first-to-second direction: -Ia.
+    model = win.readings_model
+
+    def as_named(part):
+        return model.text(model.row_of(part), BRANCH)
+
+    qtbot.waitUntil(lambda: as_named("R1") == "Ia" and as_named("R2") == "Ib")
+    assert as_named("B1") == "\u2212Ia"
     # B1 is in series with R1: tagging it moves Ia there rather than putting two names on one branch.
     tag(qtbot, win, "B1", "Ia")
     assert [t.part for t in win.sketch.tags] == ["B1", "R2"]

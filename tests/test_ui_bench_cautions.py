@@ -15,6 +15,7 @@ from PySide6.QtCore import QPoint, QPointF, Qt  # noqa: E402
 from app.assess import DISCLAIMER  # noqa: E402
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
 from app.ui.bench_marks import Badge, MeterFace  # noqa: E402
+from app.ui.readings import EFFECT  # noqa: E402
 from ui_support import open_window as open_bench_window  # noqa: E402
 
 
@@ -132,7 +133,7 @@ def test_a_voltmeter_shows_its_loaded_reading_and_its_effect(qtbot, tmp_path):
     assert isinstance(face, MeterFace) and face.isVisible()
     assert win.bench.marks.reading_text("PV1") == "3.333 V"
     row = win.readings_model.row_of("PV1")
-    assert win.readings_model.text(row, 4) == "-33 %"
+    assert win.readings_model.text(row, EFFECT) == "-33 %"
 
 
 def test_equivalent_at_two_points_picked_on_the_canvas(qtbot, tmp_path):

@@ -55,6 +55,7 @@ class HandAnalysis:
                                      tip="Click parts or corners round a loop, then Enter, to get its KVL")
         win.view.setContextMenuPolicy(Qt.ContextMenuPolicy.CustomContextMenu)
         win.view.customContextMenuRequested.connect(self._context_menu)
+        self.state.changed.connect(self._name_readings)
         self.scene = None
         self.band: Highlight | None = None
         self.layer: TagLayer | None = None
@@ -87,6 +88,16 @@ class HandAnalysis:
 
     def document_changed(self) -> None:
         self.state.request()
+
+    def _name_readings(self) -> None:
+        """Give the Readings panel each part's current by its branch name (tags included)."""
+        a = self.state.analysis
+        names: dict[str, str] = {}
+        if a is not None:
+            for b in a.branches.branches:
+                for part, sense in b.parts:
+                    names[part] = b.current if sense > 0 else "\u2212" + b.current
+        self.win.readings_model.set_branch_names(names)
 
     # -- tags ---------------------------------------------------------------------------
     def _ask_tag_name(self, suggestion: str, part: str) -> str | None:

@@ -16,11 +16,12 @@ from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QTableView
 from ..sketch.model import Sketch
 from ..units import format_value
 
-__all__ = ["ReadingsModel", "ReadingsView", "natural_key"]
+__all__ = ["ReadingsModel", "ReadingsView", "natural_key", "BRANCH", "EFFECT"]
 
-COLUMNS = ("Part", "Current", "Drop", "Power", "Meter effect")
+COLUMNS = ("Part", "Current", "Drop", "Power", "As", "Meter effect")  # "As": the branch current's name
 _UNITS = (None, "A", "V", "W")
-EFFECT = 4  # the column of the meters' effect
+BRANCH = 4  # the column naming the part's current by its branch (tag or automatic name)
+EFFECT = 5  # the column of the meters' effect
 
 
 def natural_key(name: str) -> tuple:
@@ -36,6 +37,7 @@ class ReadingsModel(QAbstractTableModel):
         self.names: list[str] = []
         self.rows: dict[str, tuple[float, float, float]] = {}
         self.effects: dict[str, tuple[str, str]] = {}  # short text, full text
+        self.branch_names: dict[str, str] = {}  # part -> "Ia" or "−Ia"
         self._row_of: dict[str, int] = {}
         self._drawn: list[str] = []  # the names in document order, as last seen
 
@@ -68,6 +70,14 @@ class ReadingsModel(QAbstractTableModel):
         if self.names:
             self.dataChanged.emit(self.index(0, EFFECT), self.index(len(self.names) - 1, EFFECT))
 
+    def set_branch_names(self, names: dict[str, str]) -> None:
+        """Name each part's current by its branch: ``Ia`` along the part, ``−Ia`` against it."""
+        if names == self.branch_names:
+            return
+        self.branch_names = names
+        if self.names:
+            self.dataChanged.emit(self.index(0, BRANCH), self.index(len(self.names) - 1, BRANCH))
+
     def row_of(self, name: str) -> int:
         return self._row_of.get(name, -1)
 
@@ -83,6 +93,8 @@ class ReadingsModel(QAbstractTableModel):
             return name
         if column == EFFECT:
             return self.effects.get(name, ("", ""))[0]
+        if column == BRANCH:
+            return self.branch_names.get(name, "")
         r = self.rows.get(name)
         if r is None:
             return "—"
@@ -99,6 +111,9 @@ class ReadingsModel(QAbstractTableModel):
             return "Current through the part from its first terminal to its second"
         if role == Qt.ItemDataRole.ToolTipRole and index.column() == 3:
             return "Power absorbed; negative means the part delivers power"
+        if role == Qt.ItemDataRole.ToolTipRole and index.column() == BRANCH:
+            return ("The part's current by the name of its branch current (your tag, or an automatic "
+                    "name): −Ia means the part's first-to-second current runs against Ia")
         if role == Qt.ItemDataRole.ToolTipRole and index.column() == EFFECT:
             full = self.effects.get(self.names[index.row()], ("", ""))[1]
             return full or ("For a meter: its reading against an ideal meter's. For another part: how much the "
@@ -122,7 +137,10 @@ class ReadingsView(QTableView):
         self.setEditTriggers(QAbstractItemView.EditTrigger.NoEditTriggers)
         self.verticalHeader().setVisible(False)
         self.verticalHeader().setDefaultSectionSize(22)
-        self.horizontalHeader().setSectionResizeMode(QHeaderView.ResizeMode.Stretch)
+        header = self.horizontalHeader()
+        header.setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)  # readings never cut short
+        header.setStretchLastSection(True)
+        header.setMinimumSectionSize(36)
         self.setAlternatingRowColors(True)
         self.setShowGrid(False)
         self.setWordWrap(False)
