@@ -12,7 +12,6 @@ from dataclasses import replace
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
-import app.ui  # noqa: E402,F401  (before Qt: see app/ui/__init__.py)
 import pytest  # noqa: E402
 
 pytest.importorskip("pytestqt")

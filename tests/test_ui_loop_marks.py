@@ -5,13 +5,11 @@ import os
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
-import app.ui  # noqa: E402,F401  (before Qt: see app/ui/__init__.py)
 import pytest  # noqa: E402
 from PySide6.QtCore import Qt  # noqa: E402
 
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
 from app.ui.annotations import LoopMark  # noqa: E402
-from app.ui.items import PartItem  # noqa: E402
 from app.ui.scene import SketchScene  # noqa: E402
 from app.ui.solve_worker import solve_sketch  # noqa: E402
 

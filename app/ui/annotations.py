@@ -224,7 +224,6 @@ class CurrentMark(_PartMark):
             u = -u
         if self.value == 0:
             return
-        c = o.centre
         r = self.text_rect
         if o.horizontal:
             mid = QPointF(r.left() - 10, r.center().y())

@@ -26,7 +26,7 @@ from .scene import SketchScene
 from .session import start
 from .shot import render_scene
 from .solve_worker import LiveSolver, Result
-from .symbols import IEC, IEEE, STYLED_KINDS, STYLES
+from .symbols import IEC, STYLED_KINDS, STYLES
 from .theme import DARK, LIGHT, current_theme, set_theme
 from .view import SELECT, WIRE, CanvasView
 

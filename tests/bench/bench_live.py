@@ -21,7 +21,6 @@ import time
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
-import app.ui  # noqa: E402,F401  (before Qt: see app/ui/__init__.py)
 from PySide6.QtCore import QEvent, QObject, QSettings  # noqa: E402
 from PySide6.QtWidgets import QApplication  # noqa: E402
 
