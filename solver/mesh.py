@@ -172,47 +172,65 @@ def _branch_solution(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.nda
 
 
 def _solve_mesh(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.ndarray]:
-    """Loop currents ``j`` and current-source voltages ``w``."""
+    """Loop currents ``j`` and current-source voltages ``w``.
+
+    The block system is scaled symmetrically by its diagonal (so resistances
+    from µΩ to TΩ stay in range), solved, and refined once. Small systems are
+    assembled and solved dense (no sparse bookkeeping for a few dozen loops),
+    large ones sparse.
+    """
     B = loops.B
     L = loops.n_loops
     cs = np.flatnonzero(topo.br_cs)
     if L == 0:
         return np.zeros(0), np.zeros(len(cs))
-    Z = (B @ sp.diags(topo.br_r) @ B.T).tocsr()
     e = -(B @ topo.br_e)
-    if len(cs):
-        Bs = B[:, cs]
-        A = sp.bmat([[Z, Bs], [Bs.T, None]], format="csc")
-        rhs = np.concatenate([e, topo.br_j[cs]])
-    else:
-        A = Z.tocsc()
-        rhs = e
-    # Symmetric diagonal scaling keeps resistances from µΩ to TΩ in range.
-    d = np.abs(A.diagonal())
-    s = np.where(d > 0, 1.0 / np.sqrt(np.where(d > 0, d, 1.0)), 1.0)
-    S = sp.diags(s)
-    As = (S @ A @ S).tocsc()
-    bs = s * rhs
+    rhs = np.concatenate([e, topo.br_j[cs]])
+    n = L + len(cs)
     try:
-        if As.shape[0] <= DENSE_LIMIT:
-            dense = As.toarray()
-            y = np.linalg.solve(dense, bs)
-            y = y + np.linalg.solve(dense, bs - dense @ y)  # one step of iterative refinement
+        if n <= DENSE_LIMIT:
+            Bd = B.toarray()
+            A = np.zeros((n, n))
+            A[:L, :L] = (Bd * topo.br_r) @ Bd.T
+            A[:L, L:] = Bd[:, cs]
+            A[L:, :L] = Bd[:, cs].T
+            s = _diagonal_scale(np.abs(np.diagonal(A)))
+            As = A * s[:, None] * s[None, :]
+            bs = s * rhs
+            y = np.linalg.solve(As, bs)
+            y = y + np.linalg.solve(As, bs - As @ y)  # one step of iterative refinement
         else:
+            Z = (B @ sp.diags(topo.br_r) @ B.T).tocsr()
+            if len(cs):
+                Bs = B[:, cs]
+                A = sp.bmat([[Z, Bs], [Bs.T, None]], format="csc")
+            else:
+                A = Z.tocsc()
+            s = _diagonal_scale(np.abs(A.diagonal()))
+            S = sp.diags(s)
+            As = (S @ A @ S).tocsc()
+            bs = s * rhs
             lu = splu(As, permc_spec="MMD_AT_PLUS_A" if not len(cs) else "COLAMD")
             y = lu.solve(bs)
             y = y + lu.solve(bs - As @ y)
     except (np.linalg.LinAlgError, RuntimeError):
         # The topology checks rule out true singularity, so this is rounding.
-        raise IllConditionedError(
-            "The loop equations are too ill-conditioned to solve: the values in this "
-            "circuit span too wide a range to give trustworthy results.", _extreme_parts(topo)) from None
+        raise _too_wide(topo) from None
     if not np.all(np.isfinite(y)):
-        raise IllConditionedError(
-            "The loop equations are too ill-conditioned to solve: the values in this "
-            "circuit span too wide a range to give trustworthy results.", _extreme_parts(topo))
+        raise _too_wide(topo)
     x = s * y
     return x[:L], x[L:]
+
+
+def _too_wide(topo: Topology) -> IllConditionedError:
+    return IllConditionedError(
+        "The loop equations are too ill-conditioned to solve: the values in this "
+        "circuit span too wide a range to give trustworthy results.", _extreme_parts(topo))
+
+
+def _diagonal_scale(d: np.ndarray) -> np.ndarray:
+    """1/sqrt of the diagonal where it is positive, 1 elsewhere (the current-source rows)."""
+    return np.where(d > 0, 1.0 / np.sqrt(np.where(d > 0, d, 1.0)), 1.0)
 
 
 def _extreme_parts(topo: Topology) -> list[str]:
