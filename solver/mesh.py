@@ -111,10 +111,11 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
         assert failure is not None
         raise failure
 
-    # Node potentials: walk a least-resistance tree from each island's reference,
-    # so no potential is carried through a large resistance whose drop is only
-    # rounding noise (ideal cells and low resistances fix potentials best).
-    walk = least_resistance_forest(topo, roots)
+    # Node potentials: walk a tree from each island's reference. With resistances
+    # spread wide, a least-resistance tree, so no potential is carried through a
+    # large resistance whose drop is only rounding noise (ideal cells and low
+    # resistances fix potentials best).
+    walk = least_resistance_forest(topo, roots) if wide else forest
     k = walk.edge
     step = np.zeros(n)
     has = k >= 0
