@@ -4,15 +4,20 @@ from __future__ import annotations
 from pathlib import Path
 
 from PySide6.QtCore import QRectF, Qt
-from PySide6.QtGui import QIcon, QPainter, QPen, QPixmap
+from PySide6.QtGui import QColor, QGuiApplication, QIcon, QPainter, QPalette, QPen, QPixmap
 
 from .symbols import IEC, paint_symbol
-from .theme import current_theme
 
 __all__ = ["tool_icon", "ICON_DIR"]
 
-INK = "#27343b"  # the ink colour the SVG files are drawn in, replaced by the scheme's
+INK = "#27343b"  # the ink colour the SVG files are drawn in, replaced by the palette's text colour
 ICON_DIR = Path(__file__).resolve().parents[2] / "assets" / "icons"
+
+
+def _ink() -> QColor:
+    """The text colour of the window's own palette: icons sit on the palette and panels, which
+    follow the system, not on the canvas (whose scheme a person may choose apart)."""
+    return QGuiApplication.palette().color(QPalette.ColorRole.WindowText)
 
 
 def _painted(kind: str, style: str) -> QIcon:
@@ -20,7 +25,7 @@ def _painted(kind: str, style: str) -> QIcon:
     pm.fill(Qt.GlobalColor.transparent)
     p = QPainter(pm)
     p.setRenderHint(QPainter.RenderHint.Antialiasing)
-    pen = QPen(current_theme().ink, 3.0)
+    pen = QPen(_ink(), 3.0)
     p.setPen(pen)
     if kind == "ground":
         p.translate(32, 18)
@@ -50,7 +55,7 @@ def tool_icon(name: str, style: str = IEC) -> QIcon:
     if path.is_file():
         from PySide6.QtCore import QByteArray
         from PySide6.QtSvg import QSvgRenderer
-        text = path.read_text(encoding="utf-8").replace(INK, current_theme().ink.name())
+        text = path.read_text(encoding="utf-8").replace(INK, _ink().name())
         renderer = QSvgRenderer(QByteArray(text.encode("utf-8")))
         if renderer.isValid():
             pm = QPixmap(64, 64)
