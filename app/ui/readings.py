@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import re
 
-from PySide6.QtCore import QAbstractTableModel, QModelIndex, QPersistentModelIndex, Qt
+from PySide6.QtCore import QAbstractTableModel, QModelIndex, QPersistentModelIndex, Qt, Signal
 from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QTableView
 
 from ..sketch.model import Sketch
@@ -31,6 +31,8 @@ def natural_key(name: str) -> tuple:
 
 class ReadingsModel(QAbstractTableModel):
     """Table of part, current (first terminal to second), drop and absorbed power."""
+
+    filled = Signal()  # values arrived after a time without any (a first solution, or after an error)
 
     def __init__(self, parent=None) -> None:
         super().__init__(parent)
@@ -60,7 +62,10 @@ class ReadingsModel(QAbstractTableModel):
 
     def set_readings(self, readings: dict[str, tuple[float, float, float]]) -> None:
         """Show new values (an empty dict shows dashes)."""
+        first = readings and not self.rows
         self.rows = readings
+        if first:
+            self.filled.emit()
         if self.names:
             self.dataChanged.emit(self.index(0, 1), self.index(len(self.names) - 1, 3))
 
@@ -138,9 +143,18 @@ class ReadingsView(QTableView):
         self.verticalHeader().setVisible(False)
         self.verticalHeader().setDefaultSectionSize(22)
         header = self.horizontalHeader()
-        header.setSectionResizeMode(QHeaderView.ResizeMode.ResizeToContents)  # readings never cut short
+        # Columns fit their contents when the rows change, not on every new value: sizing to
+        # contents on each update measured every cell of a large sketch after every edit.
+        header.setSectionResizeMode(QHeaderView.ResizeMode.Interactive)
         header.setStretchLastSection(True)
         header.setMinimumSectionSize(36)
+        model.modelReset.connect(self._fit_columns)
+        model.filled.connect(self._fit_columns)
         self.setAlternatingRowColors(True)
         self.setShowGrid(False)
         self.setWordWrap(False)
+
+    def _fit_columns(self) -> None:
+        """Size the columns to what they hold (at most the first few hundred rows are measured)."""
+        self.horizontalHeader().setResizeContentsPrecision(200)
+        self.resizeColumnsToContents()
