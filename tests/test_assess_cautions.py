@@ -143,6 +143,23 @@ def test_two_safe_cells_in_series_without_ground_make_a_hazard_between_points():
     assert one(cs, "hazardous_potential").figures["voltage"] == pytest.approx(80.0)  # KVL: 40 + 40
 
 
+def test_split_supply_of_forty_volts_each_side_of_ground_is_a_hazard_rail_to_rail():
+    # KVL: +40 V and -40 V about ground are 80 V apart, above 60 V DC (IEC 61010-1 §6.3.1),
+    # although no point is more than 40 V from ground and no part has more than 40 V across it
+    s = Sketch()
+    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, values={"emf": 40.0}))
+    s.add_part(PlacedPart("cell", "B2", 0, 4, 90, values={"emf": 40.0}))
+    s.add_part(PlacedPart("resistor", "R1", 4, 0, 90, values={"resistance": 1e3}))
+    s.add_part(PlacedPart("resistor", "R2", 4, 4, 90, values={"resistance": 1e3}))
+    s.add_wire(Wire(0, 0, 4, 0))
+    s.add_wire(Wire(0, 8, 4, 8))
+    s.add_wire(Wire(0, 4, 4, 4))
+    s.add_part(PlacedPart("ground", "GND1", 0, 4))
+    cs = cautions(s)
+    assert "hazardous_voltage" not in kinds(cs)
+    assert one(cs, "hazardous_potential").figures["voltage"] == pytest.approx(80.0)
+
+
 # -- cells ----------------------------------------------------------------------------------------
 def test_cell_into_a_near_short_is_flagged_and_a_real_load_is_not():
     shorted = cautions(series_loop({"emf": 12.0, "internal_resistance": 0.05},

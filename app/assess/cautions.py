@@ -92,15 +92,19 @@ def _hazards(sketch: Sketch, sol: Solution, net: Netlist) -> Iterator[Caution]:
     for island in islands(net.circuit):
         points = sorted(island)
         pots = {pt: sol.potential(pt) for pt in points}
-        if net.ground in island:
+        hi, lo = max(points, key=pots.get), min(points, key=pots.get)
+        grounded = net.ground in island
+        if grounded:
             far = max(points, key=lambda pt: abs(pots[pt]))
             if _over_hazard(pots[far]):
                 yield Caution("hazardous_potential", "danger", None,
                               f"Point {far} is {_v(pots[far], 'V')} from ground, beyond {HAZARD_VOLTAGE:g} V DC: "
                               "hazardous live (IEC 61010-1).",
                               {"voltage": pots[far], "limit": HAZARD_VOLTAGE}, points=(far,))
-        else:
-            hi, lo = max(points, key=pots.get), min(points, key=pots.get)
+        # Between the highest and the lowest point, unless that is the point-to-ground caution
+        # again: a split supply of ±40 V about ground is 80 V rail to rail.
+        split = pots[hi] > 0 > pots[lo]
+        if not grounded or split:
             if _over_hazard(pots[hi] - pots[lo]):
                 yield Caution("hazardous_potential", "danger", None,
                               f"Points {hi} and {lo} are {_v(pots[hi] - pots[lo], 'V')} apart, beyond "
