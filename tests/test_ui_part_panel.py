@@ -126,3 +126,14 @@ def test_material_and_conductor_flag_are_undoable_steps(qtbot, win):
     w1 = win.sketch.part("W1")
     assert (w1.choice("material"), w1.flag("both_conductors")) == ("copper", True)
     assert win.part_panel.check_box("both_conductors").isChecked()
+
+
+@pytest.mark.parametrize("bad", ["Feed resistor", "R1\u00e9", "R" * 40, "-R1"])
+def test_a_designator_the_file_could_not_hold_is_refused_before_it_is_taken(win, bad):
+    # the .lwsk name rule (assets/lwsk.schema.json): refusing at the rename keeps every sketch savable
+    before = win.sketch.snapshot()
+    with pytest.raises(ValueError, match="designator"):
+        win.editor.rename("R1", bad)
+    assert win.sketch.snapshot() == before
+    win.editor.rename("R1", "R_feed")
+    assert win.sketch.has_part("R_feed")

@@ -8,10 +8,12 @@ from __future__ import annotations
 
 import itertools
 import json
+import re
 from dataclasses import asdict, replace
 
 from PySide6.QtGui import QUndoStack
 
+from ..sketch.fileio import NAME_PATTERN
 from ..sketch.kinds import KINDS, kind_spec
 from ..sketch.model import PlacedPart, Sketch, Wire
 from .commands import SketchCommand
@@ -163,6 +165,9 @@ class Editor:
             raise ValueError("A designator cannot be empty.")
         if new.startswith("~"):
             raise ValueError("A designator cannot start with '~'.")
+        if not re.fullmatch(NAME_PATTERN, new):
+            raise ValueError("A designator is 1 to 32 letters, digits or . _ + -, starting with a letter "
+                             "or digit (no spaces), so that the sketch can be saved.")
         if new != name and self.sketch.has_part(new):
             raise ValueError(f"{new} is already used by another part.")
         part = self.sketch.part(name)
