@@ -18,6 +18,7 @@ import argparse
 import json
 import os
 import sys
+from pathlib import Path
 
 from solver import CircuitError, solve
 
@@ -114,9 +115,25 @@ def _fraction(text: str) -> float:
 
 
 def cmd_shot(args: argparse.Namespace) -> int:
+    """Write the picture; exit 2 (after writing it, with the problem marked) if the circuit cannot be solved."""
     _load(args.file)  # file problems are reported before Qt starts
+    out = Path(args.output)
+    if out.suffix.lower() not in (".png", ".svg"):
+        raise _FileProblem(f"Pictures can be written as .png or .svg, not '{out.suffix or out.name}'.")
+    if out.is_dir() or not out.parent.is_dir():
+        raise _FileProblem(f"Cannot write {out}: " +
+                           ("that is a folder." if out.is_dir() else "its folder does not exist."))
     from .ui.shot import render
-    render(args.file, args.output)
+    try:
+        render(args.file, args.output)
+    except (OSError, ValueError) as exc:
+        raise _FileProblem(str(exc)) from None
+    try:
+        _solve_file(args.file)
+    except CircuitError as exc:
+        print(f"loopwright: picture written with the problem marked; the circuit cannot be solved: {exc}",
+              file=sys.stderr)
+        return EXIT_CIRCUIT
     return EXIT_OK
 
 

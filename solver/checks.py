@@ -16,12 +16,25 @@ from .graph import Topology
 __all__ = ["check_ideal_cells", "check_current_sources"]
 
 
+_PREFIXES = ((1e12, "T"), (1e9, "G"), (1e6, "M"), (1e3, "k"), (1.0, ""), (1e-3, "m"), (1e-6, "µ"),
+             (1e-9, "n"), (1e-12, "p"))
+
+
 def _fmt(x: float, unit: str) -> str:
-    return f"{x:.4g} {unit}"
+    """A value in engineering notation with an SI prefix, 3 significant figures (10 mA, 2.50 kV)."""
+    if x == 0:
+        return f"0 {unit}"
+    for scale, prefix in _PREFIXES:
+        if abs(x) >= scale * 0.9995:
+            return f"{x / scale:.3g} {prefix}{unit}"
+    return f"{x:.3g} {unit}"
 
 
 def _names(names: list[str]) -> str:
-    names = [n for n in names if not n.startswith("~")] or names
+    """Part names joined for a sentence; names starting with '~' (internal wire pieces) are left out."""
+    names = [n for n in names if not n.startswith("~")]
+    if not names:
+        return ""
     if len(names) == 1:
         return names[0]
     return ", ".join(names[:-1]) + " and " + names[-1]
@@ -53,7 +66,8 @@ def check_ideal_cells(topo: Topology) -> None:
         pi = topo.branch_parts[k]
         name = topo.part_names[pi]
         path = _conductor_path(topo, int(topo.part_a[pi]), int(topo.part_b[pi]))
-        via = f" by {_names(path)}" if path else ""
+        shown = _names(path)
+        via = f" by {shown}" if shown else (" by a wire" if len(path) == 1 else " by wires" if path else "")
         raise ShortedCellError(
             f"{name} is shorted{via}: with no internal resistance the current would be "
             f"unbounded. Remove the short, or give {name} an internal resistance.",
@@ -122,7 +136,8 @@ def check_current_sources(topo: Topology) -> None:
     # Report the group with the fewest sources first: the clearest message.
     groups = bad if len(bad) else np.unique(np.concatenate([gu[cut], gv[cut]]))
     members = {int(g): [int(k) for k, a, b in zip(cs[cut], gu[cut], gv[cut]) if g in (a, b)] for g in groups}
-    g0 = min(members, key=lambda g: (len(members[g]), g))
+    size = np.bincount(group)
+    g0 = min(members, key=lambda g: (len(members[g]), size[g], g))  # a bare junction reads best
     ks = members[g0]
     names = [topo.part_names[topo.branch_parts[k]] for k in ks]
     if len(ks) == 1:
@@ -132,11 +147,19 @@ def check_current_sources(topo: Topology) -> None:
             names,
         )
     if len(bad):
-        currents = ", ".join(_fmt(topo.br_j[k], "A") for k in ks)
+        # each source's current as it arrives at the junction between them (+ in, - out)
+        arriving = [topo.br_j[k] if group[topo.br_v[k]] == g0 else -topo.br_j[k] for k in ks]
+        currents = " and ".join(_fmt(abs(topo.br_j[k]), "A") for k in ks)
+        if len(ks) == 2 and arriving[0] == arriving[1]:
+            what = (f"drive their currents ({currents}) against each other: both push into the junction "
+                    "between them" if arriving[0] > 0 else
+                    f"drive their currents ({currents}) against each other: both pull out of the junction "
+                    "between them")
+        else:
+            what = f"do not agree on the current ({currents}): no current can satisfy them all"
         raise CurrentSourceCutError(
-            f"{_names(names)} are current sources in series with different currents "
-            f"({currents}): no current can satisfy both. Make them equal, or put a resistor "
-            "across one of them.",
+            f"{_names(names)} are current sources in series with nothing else at the junction between "
+            f"them, and they {what}. Make them agree, or put a resistor across one of them.",
             names,
         )
     raise CurrentSourceCutError(

@@ -107,3 +107,10 @@ def test_output_cut_short_by_the_reader_ends_quietly():
                        capture_output=True, text=True, timeout=120)
     assert "Traceback" not in r.stderr
     assert r.stdout.count("\n") == 2
+
+
+@pytest.mark.parametrize("target", ["out.jpg", "noext", "missing_folder/out.png", "."])
+def test_shot_to_a_place_it_cannot_write_says_so_plainly(capsys, tmp_path, target):
+    code, out, err = run(capsys, "shot", str(DEMOS[0]), "-o", str(tmp_path / target))
+    assert code == 1
+    assert err.startswith("loopwright: ") and "Traceback" not in err

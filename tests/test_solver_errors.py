@@ -276,3 +276,26 @@ def test_single_island_with_ground_has_no_reference_note():
     c.resistor("R1", "a", "g", 100.0)
     sol = solve(c, ground="g")
     assert not any(has_words(n.message, "ground") for n in sol.notes)
+
+
+def test_opposed_series_current_sources_are_called_opposed():
+    # KCL at the junction between them: 10 mA in from each side has nowhere to go
+    c = Circuit()
+    c.current_source("I1", "a", "b", 0.01)
+    c.current_source("I2", "c", "b", 0.01)
+    c.resistor("R1", "c", "a", 1.0)
+    with pytest.raises(CurrentSourceCutError) as err:
+        solve(c)
+    assert set(err.value.parts) == {"I1", "I2"}
+    assert "against each other" in str(err.value) and "10 mA" in str(err.value)
+
+
+def test_a_cell_shorted_by_internal_wire_pieces_does_not_name_them():
+    # the netlist's wire pieces are named "~w…" and are never shown to a person
+    c = Circuit()
+    c.cell("B1", plus="a", minus="b", emf=9.0)
+    c.wire("~w0.1", "a", "x")
+    c.wire("~w1.1", "x", "b")
+    with pytest.raises(ShortedCellError) as err:
+        solve(c)
+    assert "~" not in str(err.value) and "by wires" in str(err.value)
