@@ -103,6 +103,7 @@ class _OwnedMark(QGraphicsItem):
     """A mark hung on a part, laid out on the side of the body away from the part's label."""
 
     GAP = 3.0
+    KEEP_CLEAR = True  # loop marks and potential tags are placed so as not to cover it
 
     def __init__(self, parent: PartItem) -> None:
         super().__init__(parent)
@@ -169,7 +170,7 @@ class Badge(_OwnedMark):
         self.setVisible(True)
 
     def _font(self) -> QFont:
-        font = small_font()
+        font = QFont(small_font())  # a copy: the shared font serves every other mark
         font.setWeight(QFont.Weight.DemiBold if self.severity != "info" else QFont.Weight.Normal)
         return font
 

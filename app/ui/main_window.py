@@ -329,9 +329,9 @@ class MainWindow(QMainWindow):
         self.part_panel.show_part(sel[0] if len(sel) == 1 else None)
 
     def _show_result(self, result: Result) -> None:
+        self.bench.show_result(result)   # badges first, so loop marks are placed clear of them
         self.scene.show_result(result)
         self.readings_model.set_readings(result.readings if not result.error else {})
-        self.bench.show_result(result)
         text = result.summary
         extra = result.cautions + result.notes
         if extra:

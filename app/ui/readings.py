@@ -56,6 +56,7 @@ class ReadingsModel(QAbstractTableModel):
         names = sorted(drawn, key=natural_key)
         if names != self.names:
             self.beginResetModel()
+            self.rows = {}  # another set of parts: the next values are a first fill (columns refit)
             self.names = names
             self._row_of = {n: i for i, n in enumerate(names)}
             self.endResetModel()

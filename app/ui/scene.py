@@ -440,7 +440,7 @@ class SketchScene(QGraphicsScene):
             return rects
         if isinstance(item, (CurrentMark, DropMark)):
             return [item.mapRectToScene(item.text_rect)]
-        if isinstance(item, (PotentialTag, LoopMark)):
+        if isinstance(item, (PotentialTag, LoopMark)) or getattr(item, "KEEP_CLEAR", False):
             return [item.sceneBoundingRect()]
         return []
 

@@ -101,9 +101,9 @@ def render(path_in: str | os.PathLike[str], path_out: str | os.PathLike[str]) ->
     try:
         scene = SketchScene(sketch, IEC)
         result = solve_sketch(sketch)
-        scene.show_result(result)
         marks = BenchMarks(scene, scene.part_items)  # cautions and meter displays, as in the window
         marks.show(result.assessment if not result.error else [])
+        scene.show_result(result)  # after the badges, so loop marks are placed clear of them
         render_scene(scene, path_out)
     finally:
         set_theme(None)

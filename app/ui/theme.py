@@ -105,6 +105,9 @@ def label_font(pixels: int = 11) -> QFont:
         f = QFont()
         f.setFamilies(["DejaVu Sans", "Segoe UI", "Helvetica Neue", "Sans Serif"])
         f.setPixelSize(pixels)
+        # Unhinted glyphs scale linearly, so text measured at its scene size fits its box
+        # at every zoom and in pictures (hinted glyphs grew wider when zoomed and were clipped).
+        f.setHintingPreference(QFont.HintingPreference.PreferNoHinting)
         _FONTS[pixels] = f
     return f
 
