@@ -148,9 +148,21 @@ def cmd_open(path: str | None) -> int:
     return run(path)
 
 
+class _Parser(argparse.ArgumentParser):
+    """argparse with the program's exit status for a command given wrongly (1, not 2: 2 means
+    the circuit cannot be solved)."""
+
+    def error(self, message: str):
+        self.print_usage(sys.stderr)
+        self.exit(EXIT_FILE, f"loopwright: {message}\n")
+
+
 def _parser() -> argparse.ArgumentParser:
-    p = argparse.ArgumentParser(prog="loopwright", description="Sketch DC circuits and solve them by mesh-current analysis.")
-    sub = p.add_subparsers(dest="command", required=True)
+    p = _Parser(prog="loopwright", description="Sketch DC circuits and solve them by mesh-current analysis. "
+                "'loopwright FILE.lwsk' (or no argument) opens the window.",
+                epilog="Exit status: 0 solved (or the check holds), 1 the file could not be read or the "
+                "command was given wrongly, 2 the circuit cannot be solved, 3 a check found it wrong.")
+    sub = p.add_subparsers(dest="command", required=True, parser_class=_Parser)
     s = sub.add_parser("solve", help="solve a sketch and print every part's current, drop and power")
     s.add_argument("file", help="a .lwsk sketch")
     s.add_argument("--json", action="store_true", help="print JSON (parts, nodes, loops, warnings)")

@@ -114,3 +114,11 @@ def test_shot_to_a_place_it_cannot_write_says_so_plainly(capsys, tmp_path, targe
     code, out, err = run(capsys, "shot", str(DEMOS[0]), "-o", str(tmp_path / target))
     assert code == 1
     assert err.startswith("loopwright: ") and "Traceback" not in err
+
+
+def test_a_command_given_wrongly_exits_1_not_2(capsys):
+    # 2 is kept for circuits that cannot be solved (README, "Using it")
+    with pytest.raises(SystemExit) as stop:
+        main(["solve"])
+    assert stop.value.code == 1
+    assert "required" in capsys.readouterr().err

@@ -153,7 +153,7 @@ def _from_netlist(generation: int, netlist: Netlist, sketch: Sketch | None = Non
         res.assessment = assess_result(sketch, netlist, sol)
     n_loops = len(sol.loops)
     res.summary = (f"Solved by mesh currents: {n_loops} loop{'s' if n_loops != 1 else ''}, "
-                   f"{len(sol.nodes)} nodes.")
+                   f"{len(sol.nodes)} node{'s' if len(sol.nodes) != 1 else ''}.")
     return res
 
 
