@@ -12,10 +12,18 @@ from solver import Solution
 from .assess import Caution
 from .units import format_value
 
-__all__ = ["solution_dict", "solution_table", "caution_dict", "CAUTION"]
+__all__ = ["solution_dict", "solution_table", "caution_dict", "node_labels", "CAUTION"]
 
 CAUTION = ("Results come from an idealised linear DC model: they are no substitute for "
            "measurement. Mains and high-energy work follows local codes and licensed practice.")
+
+
+def node_labels(sol: Solution) -> dict[str, str]:
+    """n1, n2, … for the nodes that touch a branch, in the solver's node order: the labels the
+    equations and the checker use (app/analysis/branches.py numbers them the same way)."""
+    g = sol.graph
+    touching = [n for n in sol.nodes if g.degree(n) > 0]
+    return {n: f"n{k + 1}" for k, n in enumerate(touching)}
 
 
 def _shown(name: str) -> bool:
@@ -31,7 +39,8 @@ def solution_dict(sol: Solution, cautions: Sequence[Caution] = ()) -> dict:
         name: {"current": sol.current(name), "voltage": sol.voltage(name), "power": sol.power(name)}
         for name in sol.parts if _shown(name)
     }
-    nodes = {name: {"potential": sol.potential(name), "points": points}
+    labels = node_labels(sol)
+    nodes = {name: {"potential": sol.potential(name), "points": points, "label": labels.get(name)}
              for name, points in sol.nodes.items()}
     loops = [{
         "name": lp.name,
@@ -80,9 +89,12 @@ def solution_table(sol: Solution, title: str = "", cautions: Sequence[Caution] =
     rows = [[n, format_value(sol.current(n), "A"), format_value(sol.voltage(n), "V"),
              format_value(sol.power(n), "W")] for n in sol.parts if _shown(n)]
     out += _table(["Part", "Current", "Drop", "Power"], rows)
-    ref = f"relative to ground ({sol.ground})" if sol.ground else "relative to each island's reference"
-    out += ["", f"Node potentials, {ref}:"]
-    out += _table(["Node", "Potential"], [[n, format_value(sol.potential(n), "V")] for n in sol.nodes])
+    ref = (f"relative to ground (node {sol.node_of(sol.ground)})" if sol.ground
+           else "relative to each island's reference")
+    out += ["", f"Node potentials, {ref} (n1, n2, … as in the equations):"]
+    labels = node_labels(sol)
+    out += _table(["Node", "Label", "Potential"],
+                  [[n, labels.get(n, ""), format_value(sol.potential(n), "V")] for n in sol.nodes])
     if sol.loops:
         out += ["", f"Loop currents ({sol.loop_method}):"]
         out += _table(["Loop", "Current", "Sense", "Parts"],

@@ -122,3 +122,15 @@ def test_a_command_given_wrongly_exits_1_not_2(capsys):
         main(["solve"])
     assert stop.value.code == 1
     assert "required" in capsys.readouterr().err
+
+
+def test_node_labels_in_solve_are_the_ones_the_checker_reads(capsys):
+    # the same n1, n2, … must name the same node in `solve --json` and in `check`
+    demo = str(DEMOS[0].parent / "bench_supply_fixture.lwsk")
+    code, out, _ = run(capsys, "solve", demo, "--json")
+    nodes = json.loads(out)["nodes"]
+    labelled = {rec["label"]: rec["potential"] for rec in nodes.values() if rec["label"]}
+    assert len(labelled) >= 3
+    answers = ", ".join(f"V({label}) = {v!r}" for label, v in labelled.items())
+    code, out, err = run(capsys, "check", demo, "--eq", answers)
+    assert code == 0, out + err
