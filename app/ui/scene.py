@@ -464,7 +464,7 @@ class SketchScene(QGraphicsScene):
         self._note.setVisible(False)
 
     def show_fault(self, message: str, parts: Iterable[str]) -> None:
-        """Hide stale results, mark the parts named by an error and put its message beside them."""
+        """Hide stale results, mark the parts named by an error and put its message below the drawing."""
         self.clear_results()
         self._clear_fault()
         rect = QRectF()
@@ -475,11 +475,14 @@ class SketchScene(QGraphicsScene):
             item.set_flagged(True)
             self._flagged.add(name)
             rect = rect.united(item.sceneBoundingRect())
+        drawing = QRectF()
+        for item in [*self.part_items.values(), *self.wire_items]:
+            drawing = drawing.united(item.sceneBoundingRect())
         if rect.isNull():
-            rect = self.itemsBoundingRect()
-            rect = QRectF(rect.left(), rect.top() - 40, 0, 0)
+            rect = drawing
+        # below the whole drawing, under the parts it names: it never covers wires or symbols
         self._note.set_message(message)
-        self._note.setPos(rect.left(), rect.bottom() + 8)
+        self._note.setPos(rect.left(), (drawing.bottom() if not drawing.isNull() else rect.bottom()) + 12)
         self._note.setVisible(True)
 
     def show_result(self, result) -> None:
