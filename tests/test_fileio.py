@@ -159,7 +159,7 @@ MALFORMED_TEXT = [
     (GOOD.replace('"x": 4,', '"x": ' + "9" * 5000 + ","), "more than 40 digits"),
     (GOOD.replace('"x": 4,', '"x": 4, "x": 5,'), 'the key "x" appears twice'),
     (GOOD[:-10], "not valid JSON"),
-    ("", "not valid JSON"),
+    ("", "empty"),
     ("[]", "must hold one JSON object"),
     ('"loopwright-sketch"', "must hold one JSON object"),
     ("[" * 5000 + "]" * 5000, "nests lists or objects more than 16 deep"),

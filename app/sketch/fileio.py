@@ -157,6 +157,8 @@ def _parse(data: str | bytes) -> Any:
         text = data.removeprefix("\ufeff")
         if len(text.encode("utf-8", "surrogatepass")) > MAX_BYTES:
             raise SketchFileError(f"The text is larger than {MAX_BYTES // 2**20} MB.")
+    if not text.strip():
+        raise SketchFileError("The file is empty: it holds no sketch.")
     _check_depth(text)
     try:
         return json.loads(text, object_pairs_hook=_pairs, parse_constant=_constant,
