@@ -225,6 +225,9 @@ def test_a_short_circuit_drawn_on_the_canvas_marks_the_shorted_cell(qtbot, win):
     items = win.scene.part_items
     assert items["B1"].flagged
     assert not items["R1"].flagged
+    # the wires that make the short are marked too, and only those (the bare run left of the cell)
+    flagged = [w.wire for w in win.scene.wire_items if w.flagged]
+    assert flagged and all(max(w.x1, w.x2) <= 0 for w in flagged)
     assert "Not solved" in win.scene.fault_text
     assert not items["R1"].current_mark.isVisible()  # stale results hidden
     assert win.readings_model.text(win.readings_model.row_of("R1"), 1) == "—"

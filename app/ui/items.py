@@ -228,7 +228,14 @@ class WireItem(QGraphicsItem):
         self.setCacheMode(CACHE)
         self.setZValue(Z_WIRE)
         self.wire = wire
+        self.flagged = False
         self._layout()
+
+    def set_flagged(self, flagged: bool) -> None:
+        """Mark the wire as named by a circuit error (a dashed halo: shape as well as colour)."""
+        if flagged != self.flagged:
+            self.flagged = flagged
+            self.update()
 
     def set_wire(self, wire: Wire) -> None:
         self.prepareGeometryChange()
@@ -260,6 +267,11 @@ class WireItem(QGraphicsItem):
             halo = QColor(th.select)
             halo.setAlpha(90)
             painter.setPen(ink_pen(halo, 7))
+            painter.drawLine(self.line)
+        if self.flagged:
+            pen = ink_pen(th.fault, 6)
+            pen.setStyle(Qt.PenStyle.DashLine)
+            painter.setPen(pen)
             painter.drawLine(self.line)
         painter.setPen(ink_pen(th.ink))
         painter.drawLine(self.line)

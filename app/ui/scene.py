@@ -461,9 +461,11 @@ class SketchScene(QGraphicsScene):
             if item is not None:
                 item.set_flagged(False)
         self._flagged = set()
+        for w in self.wire_items:
+            w.set_flagged(False)
         self._note.setVisible(False)
 
-    def show_fault(self, message: str, parts: Iterable[str]) -> None:
+    def show_fault(self, message: str, parts: Iterable[str], wires: Iterable[int] = ()) -> None:
         """Hide stale results, mark the parts named by an error and put its message below the drawing."""
         self.clear_results()
         self._clear_fault()
@@ -475,6 +477,9 @@ class SketchScene(QGraphicsScene):
             item.set_flagged(True)
             self._flagged.add(name)
             rect = rect.united(item.sceneBoundingRect())
+        for i in wires:
+            if 0 <= i < len(self.wire_items):
+                self.wire_items[i].set_flagged(True)
         drawing = QRectF()
         for item in [*self.part_items.values(), *self.wire_items]:
             drawing = drawing.united(item.sceneBoundingRect())
@@ -489,7 +494,7 @@ class SketchScene(QGraphicsScene):
         """Show a ``solve_worker.Result``: connection marks, then the solution or the fault."""
         self.show_connections(result.junctions, result.open_ends)
         if result.error:
-            self.show_fault(result.error, result.error_parts)
+            self.show_fault(result.error, result.error_parts, result.error_wires)
         elif result.readings:
             self.show_solution({n: (r[0], r[1]) for n, r in result.readings.items()},
                                result.potentials, result.loops, result.loop_outlines)

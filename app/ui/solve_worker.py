@@ -43,6 +43,7 @@ class Result:
     loop_outlines: list[list[tuple[float, float]]] = field(default_factory=list)  # corners, per loop
     error: str = ""
     error_parts: tuple[str, ...] = ()
+    error_wires: tuple[int, ...] = ()  # indices of the sketch's wires named by the error (a short, say)
     notes: list[str] = field(default_factory=list)
     cautions: list[str] = field(default_factory=list)
     summary: str = ""
@@ -115,6 +116,8 @@ def _from_netlist(generation: int, netlist: Netlist, sketch: Sketch | None = Non
     except CircuitError as e:
         res.error = e.message
         res.error_parts = tuple(p for p in e.parts if not p.startswith("~"))
+        named = set(e.parts)
+        res.error_wires = tuple(i for i, pieces in netlist.wire_parts.items() if named.intersection(pieces))
         res.summary = "Not solved: " + e.message
         return res
     # whole arrays at once: per-name lookups cost more than the solve on large sketches
