@@ -16,7 +16,7 @@ from .errors import (
     UnknownPartError,
 )
 
-__all__ = ["Circuit", "Part", "RESISTOR", "CELL", "CURRENT_SOURCE", "WIRE", "SWITCH"]
+__all__ = ["Circuit", "Part", "RESISTOR", "CELL", "CURRENT_SOURCE", "WIRE", "SWITCH", "MAX_VALUE", "MIN_RESISTANCE"]
 
 MAX_VALUE = 1e18        # largest magnitude of any value, SI units: results stay far from overflow
 MIN_RESISTANCE = 1e-12  # smallest non-zero resistance, ohms (1 pΩ; the range asked for starts at 1 µΩ)

@@ -137,3 +137,12 @@ def test_a_designator_the_file_could_not_hold_is_refused_before_it_is_taken(win,
     assert win.sketch.snapshot() == before
     win.editor.rename("R1", "R_feed")
     assert win.sketch.has_part("R_feed")
+
+
+@pytest.mark.parametrize("typed, word", [("1e19", "beyond"), ("0.5p", "below")])
+def test_values_beyond_any_real_part_are_refused_where_they_are_typed(typed, word):
+    # the solver's own limits (solver/circuit.py): refused at entry rather than later in the status line
+    from app.ui.valuetext import read_value
+    with pytest.raises(ValueError, match=word):
+        read_value(typed, "Ω", "Resistance", False)
+    assert read_value("4k7", "Ω", "Resistance", False) == 4700.0  # IEC 60062 code

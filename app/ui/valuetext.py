@@ -9,6 +9,8 @@ from __future__ import annotations
 import math
 import re
 
+from solver.circuit import MAX_VALUE, MIN_RESISTANCE
+
 from ..sketch.kinds import ValueField, kind_spec
 from ..sketch.model import PlacedPart
 from ..units import format_value, parse_value
@@ -42,6 +44,11 @@ def _checked(v: float, unit: str, label: str, zero_ok: bool) -> float:
     if v == 0 and not zero_ok:
         tail = "; draw a wire for a zero-ohm connection" if unit == "Ω" else ""
         raise ValueError(f"{label} cannot be zero{tail}.")
+    if v > MAX_VALUE:
+        raise ValueError(f"{label} is beyond any real part (more than {format_value(MAX_VALUE, unit)}).")
+    if unit == "Ω" and 0 < v < MIN_RESISTANCE:
+        raise ValueError(f"{label} is below any real part (less than {format_value(MIN_RESISTANCE, unit)}); "
+                         "draw a wire instead.")
     return v
 
 
