@@ -85,11 +85,14 @@ def run_check(a: Analysis, text: str, kind: str | None = None, tolerance: float 
             return CheckOutcome(False, kind, str(exc))
         lines = tuple((item.message, None if item.ok else _find(text, item.name)) for item in result.items)
         right = sum(1 for i in result.items if i.ok)
+        unknown = sum(1 for i in result.items if not i.ok and i.expected is None)
         n = len(result.items)
+        off = n - right - unknown
+        parts = ([f"{off} of {n} answer{'s' if n != 1 else ''} off by more than {tolerance * 100:.3g} %"]
+                 if off else []) + ([f"{unknown} name{'s' if unknown != 1 else ''} not in this circuit"]
+                                    if unknown else [])
         summary = (f"Right: {'all ' if n > 1 else ''}{n} answer{'s' if n != 1 else ''} within "
-                   f"{tolerance * 100:.3g} %." if result.ok else
-                   f"Not right: {n - right} of {n} answer{'s' if n != 1 else ''} off by more than "
-                   f"{tolerance * 100:.3g} %.")
+                   f"{tolerance * 100:.3g} %." if result.ok else "Not right: " + "; ".join(parts) + ".")
         return CheckOutcome(result.ok, kind, summary, lines)
     result = check_equation(a, text)
     lines = tuple((f.message, f.column) for f in result.findings)
