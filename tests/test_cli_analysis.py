@@ -107,6 +107,7 @@ def test_text_that_is_no_equation_is_wrong_with_a_message(capsys, tagged):
 
 
 def test_an_answer_for_a_current_the_circuit_does_not_have_is_called_unknown(capsys, tagged):
-    code, out, _ = run(capsys, "check", str(tagged), "--eq", "Ix = 3")
+    path, _ = tagged
+    code, out, _ = run(capsys, "check", str(path), "--eq", "Ix = 3")
     assert code == 3
     assert "not in this circuit" in out and "off by more than" not in out
