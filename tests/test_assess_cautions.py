@@ -130,7 +130,8 @@ def test_sixty_volt_caution_fires_at_60_1_and_not_at_59_9():
     assert not kinds(cool) & {"hazardous_voltage", "hazardous_potential"}
 
 
-def test_two_safe_cells_in_series_without_ground_make_a_hazard_between_points():
+def two_forty_volt_cells(ground_between: bool) -> Sketch:
+    """B1 over B2 (40 V each) feeding R1 over R2; optionally the middle joined and grounded."""
     s = Sketch()
     s.add_part(PlacedPart("cell", "B1", 0, 0, 90, values={"emf": 40.0}))
     s.add_part(PlacedPart("cell", "B2", 0, 4, 90, values={"emf": 40.0}))
@@ -138,7 +139,14 @@ def test_two_safe_cells_in_series_without_ground_make_a_hazard_between_points():
     s.add_part(PlacedPart("resistor", "R2", 4, 4, 90, values={"resistance": 1e3}))
     s.add_wire(Wire(0, 0, 4, 0))
     s.add_wire(Wire(0, 8, 4, 8))
-    cs = cautions(s)
+    if ground_between:
+        s.add_wire(Wire(0, 4, 4, 4))
+        s.add_part(PlacedPart("ground", "GND1", 0, 4))
+    return s
+
+
+def test_two_safe_cells_in_series_without_ground_make_a_hazard_between_points():
+    cs = cautions(two_forty_volt_cells(ground_between=False))
     assert "hazardous_voltage" not in kinds(cs)  # 40 V across each part
     assert one(cs, "hazardous_potential").figures["voltage"] == pytest.approx(80.0)  # KVL: 40 + 40
 
@@ -146,16 +154,7 @@ def test_two_safe_cells_in_series_without_ground_make_a_hazard_between_points():
 def test_split_supply_of_forty_volts_each_side_of_ground_is_a_hazard_rail_to_rail():
     # KVL: +40 V and -40 V about ground are 80 V apart, above 60 V DC (IEC 61010-1 §6.3.1),
     # although no point is more than 40 V from ground and no part has more than 40 V across it
-    s = Sketch()
-    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, values={"emf": 40.0}))
-    s.add_part(PlacedPart("cell", "B2", 0, 4, 90, values={"emf": 40.0}))
-    s.add_part(PlacedPart("resistor", "R1", 4, 0, 90, values={"resistance": 1e3}))
-    s.add_part(PlacedPart("resistor", "R2", 4, 4, 90, values={"resistance": 1e3}))
-    s.add_wire(Wire(0, 0, 4, 0))
-    s.add_wire(Wire(0, 8, 4, 8))
-    s.add_wire(Wire(0, 4, 4, 4))
-    s.add_part(PlacedPart("ground", "GND1", 0, 4))
-    cs = cautions(s)
+    cs = cautions(two_forty_volt_cells(ground_between=True))
     assert "hazardous_voltage" not in kinds(cs)
     assert one(cs, "hazardous_potential").figures["voltage"] == pytest.approx(80.0)
 
