@@ -37,10 +37,10 @@ __all__ = ["LoopSet", "window_loops", "fundamental_loops", "orient_clockwise", "
 class LoopSet:
     """Loops as a sparse incidence matrix plus ordered membership.
 
-    ``B`` is (loops × branches). ``entries`` holds, per loop, its
-    ``(branch, sign)`` pairs in traversal order as three arrays sorted by
-    loop: ``loop``, ``branch``, ``sign``. ``clockwise[l]`` is +1 if loop ``l``
-    runs clockwise on screen, -1 anticlockwise, 0 unknown.
+    ``B`` is (loops × branches). ``loop``, ``branch`` and ``sign`` list each
+    loop's ``(branch, sign)`` pairs in traversal order, sorted by loop.
+    ``clockwise[l]`` is +1 if loop ``l`` runs clockwise on screen, -1
+    anticlockwise, 0 unknown.
     """
 
     method: str

@@ -141,9 +141,12 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
             _extreme_parts(topo))
     for arr in (current, voltage, potential):   # subnormal results are rounding residue
         arr[np.abs(arr) < TINY] = 0.0
-    notes = _notes(topo, loops, i_br, label, roots, ground_node)
-    references = [topo.node_names[r] for r in np.unique(roots)
-                  if r != ground_node and _island_has_branch(topo, label, r)]
+    # islands with a branch that are measured from a point of their own (not ground)
+    with_branch = np.zeros(len(roots), bool)
+    with_branch[label[topo.br_u]] = True
+    own = sorted(int(r) for r in roots[with_branch] if r != ground_node)
+    notes = _notes(topo, loops, i_br, own, ground_node)
+    references = [topo.node_names[r] for r in own]
     return Solution(topo, current, voltage, potential, loops, j, notes, ground, references)
 
 
@@ -303,18 +306,11 @@ def _conductor_currents(topo: Topology, i_br: np.ndarray) -> np.ndarray:
     return out
 
 
-def _island_has_branch(topo: Topology, label: np.ndarray, root: int) -> bool:
-    nodes = np.concatenate([topo.br_u, topo.br_v])
-    return bool(np.any(label[nodes] == label[root])) if len(nodes) else False
-
-
-def _notes(topo: Topology, loops: LoopSet, i_br: np.ndarray, label: np.ndarray,
-           roots: np.ndarray, ground_node: int) -> list[Note]:
+def _notes(topo: Topology, loops: LoopSet, i_br: np.ndarray, islands: list[int], ground_node: int) -> list[Note]:
+    """Open and shorted parts, and the islands (``islands``: their reference nodes) not measured from ground."""
     notes: list[Note] = []
     names = topo.part_names
     bp = topo.branch_parts
-    # islands measured from their own reference point
-    islands = [int(r) for r in np.unique(roots) if int(r) != ground_node and _island_has_branch(topo, label, int(r))]
     if islands:
         refs = ", ".join(topo.node_names[r] for r in islands)
         if ground_node < 0:

@@ -567,11 +567,25 @@ def random_drawings(draw, r_exp=(-1.0, 4.0)):
         if draw(st.booleans()):
             p, q = q, p
         _add_random_part(draw, c, k + 1, "p%d_%d" % p, "p%d_%d" % q, r_exp)
+    place_by_name(c)
+    ground = draw(st.one_of(st.none(), st.sampled_from(c.points)))
+    return c, ground
+
+
+def place_by_name(c: Circuit) -> None:
+    """Put each point named ``p<x>_<y>`` at grid position (x, y)."""
     for pt in c.points:
         x, y = pt[1:].split("_")
         c.place(pt, int(x), int(y))
-    ground = draw(st.one_of(st.none(), st.sampled_from(c.points)))
-    return c, ground
+
+
+def assert_clockwise_windows(c: Circuit, count: int) -> None:
+    """Place the points by name, solve, hold the laws, and expect ``count`` clockwise windows."""
+    place_by_name(c)
+    sol = solve(c)
+    check_laws(c, sol)
+    assert len(sol.loops) == count
+    assert all(loop.orientation == "clockwise" for loop in sol.loops)
 
 
 def _describe(c: Circuit, ground) -> str:
@@ -654,13 +668,7 @@ def test_drawing_with_wire_triangle_uses_windows():
     c.resistor("R6", "p0_0", "p1_1", 1.0)
     c.resistor("R7", "p1_0", "p1_1", 10.0)
     c.current_source("I8", "p0_1", "p1_1", 1.0)
-    for pt in c.points:
-        x, y = pt[1:].split("_")
-        c.place(pt, int(x), int(y))
-    sol = solve(c)
-    check_laws(c, sol)
-    assert len(sol.loops) == 3
-    assert all(loop.orientation == "clockwise" for loop in sol.loops)
+    assert_clockwise_windows(c, 3)
 
 
 def test_drawing_with_wires_round_a_hexagon_uses_windows():
@@ -677,13 +685,7 @@ def test_drawing_with_wires_round_a_hexagon_uses_windows():
     c.wire("W11", "p0_0", "p0_1")
     c.wire("W12", "p1_0", "p2_1")
     c.resistor("R14", "p1_0", "p1_1", 100.0)
-    for pt in c.points:
-        x, y = pt[1:].split("_")
-        c.place(pt, int(x), int(y))
-    sol = solve(c)
-    check_laws(c, sol)
-    assert len(sol.loops) == 3
-    assert all(loop.orientation == "clockwise" for loop in sol.loops)
+    assert_clockwise_windows(c, 3)
 
 
 def test_placed_drawing_without_loops():

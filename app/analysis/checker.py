@@ -363,17 +363,26 @@ def _loop_scale(parsed: ParsedEquation, a: Analysis, k: float) -> str:
     return _describe(k)
 
 
+def _first_multiple(p: np.ndarray, candidates, vector_of):
+    """The first candidate equation whose vector ``p`` is a multiple of, with the factor; else None."""
+    for ref in candidates:
+        k = _ratio(p, vector_of(ref))
+        if k is not None:
+            return ref, k
+    return None
+
+
 def _kvl_match(a: Analysis, parsed: ParsedEquation) -> EquationCheck | None:
     """The verdict if the equation is KVL of a loop (or follows from KVL), else None."""
     p = _kvl_vector(a, parsed.linear)
     if not np.any(p):
         return EquationCheck(False, "Everything in this equation cancels out (it says 0 = 0 by KCL).", "KVL")
     candidates = _kvl_candidates(a)
-    for ref in candidates:
-        k = _ratio(p, _kvl_vector(a, ref.linear))
-        if k is not None:
-            return EquationCheck(True, f"Correct: KVL around {ref.label}{_loop_scale(parsed, a, k)}.", "KVL",
-                                 ref.label, k, ref)
+    found = _first_multiple(p, candidates, lambda ref: _kvl_vector(a, ref.linear))
+    if found is not None:
+        ref, k = found
+        return EquationCheck(True, f"Correct: KVL around {ref.label}{_loop_scale(parsed, a, k)}.", "KVL",
+                             ref.label, k, ref)
     rows = np.array([_kvl_vector(a, ref.linear) for ref in candidates if ref.loop is not None])
     if len(rows):
         x, *_ = np.linalg.lstsq(rows.T, p, rcond=None)
@@ -459,11 +468,10 @@ def _kcl_check(a: Analysis, parsed: ParsedEquation) -> EquationCheck:
     if not np.any(p):
         return EquationCheck(False, "Everything in this equation cancels out (it says 0 = 0).", "KCL")
     candidates = kcl_equations(a)
-    for ref in candidates:
-        k = _ratio(p, _kcl_vector(a, ref.linear))
-        if k is not None:
-            return EquationCheck(True, f"Correct: KCL at junction {ref.label}{_describe(k)}.", "KCL", ref.label, k,
-                                 ref)
+    found = _first_multiple(p, candidates, lambda ref: _kcl_vector(a, ref.linear))
+    if found is not None:
+        ref, k = found
+        return EquationCheck(True, f"Correct: KCL at junction {ref.label}{_describe(k)}.", "KCL", ref.label, k, ref)
     if candidates:
         rows = np.array([_kcl_vector(a, ref.linear) for ref in candidates])
         x, *_ = np.linalg.lstsq(rows.T, p, rcond=None)

@@ -58,6 +58,8 @@ class AnalysisState(QObject):
         self.analysis: Analysis | None = None
         self.problem = ""
         self.problem_parts: tuple[str, ...] = ()
+        # The live solver's result for the sketch as it is now, or None: reused rather than solved again.
+        self.live: Callable[[], Any] = lambda: None
         self._timer = QTimer(self)
         self._timer.setSingleShot(True)
         self._timer.setInterval(DELAY_MS)
@@ -97,13 +99,21 @@ class AnalysisState(QObject):
             self.problem = (f"The sketch has more than {MAX_PARTS} parts; use loopwright equations FILE "
                             "for its equations.")
             return
-        try:
-            self.netlist = to_circuit(sketch)
-            self.solution = solve(self.netlist.circuit, ground=self.netlist.ground)
-        except CircuitError as exc:
-            self.problem = "Not solved, so no equations yet: " + exc.message
-            self.problem_parts = tuple(p for p in exc.parts if not p.startswith("~"))
-            return
+        current = self.live()
+        if current is not None and current.netlist is not None and (current.solution or current.error):
+            if current.solution is None:
+                self.problem = "Not solved, so no equations yet: " + current.error
+                self.problem_parts = current.error_parts
+                return
+            self.netlist, self.solution = current.netlist, current.solution
+        else:
+            try:
+                self.netlist = to_circuit(sketch)
+                self.solution = solve(self.netlist.circuit, ground=self.netlist.ground)
+            except CircuitError as exc:
+                self.problem = "Not solved, so no equations yet: " + exc.message
+                self.problem_parts = tuple(p for p in exc.parts if not p.startswith("~"))
+                return
         try:
             self.analysis = analyse(self.solution, self.netlist.circuit, tags_of(sketch))
         except TagError as exc:

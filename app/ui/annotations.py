@@ -36,6 +36,12 @@ def _fm() -> QFontMetricsF:
     return _FM
 
 
+def _unit(d: QPointF) -> QPointF:
+    """``d`` scaled to length 1 (a zero vector stays zero)."""
+    length = math.hypot(d.x(), d.y()) or 1.0
+    return QPointF(d.x() / length, d.y() / length)
+
+
 def _arrow_head(tip: QPointF, direction: QPointF, size: float = 5.0) -> QPolygonF:
     dx, dy = direction.x(), direction.y()
     back = QPointF(tip.x() - dx * size, tip.y() - dy * size)
@@ -167,6 +173,15 @@ class _PartMark(QGraphicsItem):
     def _format(self, value: float) -> str:
         return format_value(abs(value), self.UNIT)
 
+    def _begin(self, painter: QPainter, colour) -> bool:
+        """Set up the painter in the mark's colour; False when there is nothing to draw."""
+        if self.value is None or too_small(painter):
+            return False
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        painter.setPen(QPen(colour, 1.4))
+        painter.setFont(small_font())
+        return True
+
     def relayout(self) -> None:
         """Lay the box out again (the owner moved or turned, or an unusual value came)."""
         self.prepareGeometryChange()
@@ -205,25 +220,18 @@ class CurrentMark(_PartMark):
     UNIT = "A"
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
-        if self.value is None or too_small(painter):
-            return
         th = current_theme()
+        if not self._begin(painter, th.current):
+            return
         o = self.owner
-        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
-        painter.setPen(QPen(th.current, 1.4))
-        painter.setFont(small_font())
         tr = self.text_rect
         if not o.horizontal:
             tr = tr.adjusted(self.ROOM, 0, 0, 0) if o.side > 0 else tr.adjusted(0, 0, -self.ROOM, 0)
         painter.drawText(tr, _align(o), self.text)
-        t0, t1 = o.terminal_points()[:2]
-        d = t1 - t0
-        length = math.hypot(d.x(), d.y()) or 1.0
-        u = QPointF(d.x() / length, d.y() / length)
-        if self.value < 0:
-            u = -u
         if self.value == 0:
             return
+        t0, t1 = o.terminal_points()[:2]
+        u = _unit(t1 - t0) if self.value > 0 else _unit(t0 - t1)
         r = self.text_rect
         if o.horizontal:
             mid = QPointF(r.left() - 10, r.center().y())
@@ -244,22 +252,15 @@ class DropMark(_PartMark):
     UNIT = "V"
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
-        if self.value is None or too_small(painter):
+        if not self._begin(painter, current_theme().drop):
             return
-        th = current_theme()
         o = self.owner
-        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
-        pen = QPen(th.drop, 1.4)
-        painter.setPen(pen)
-        painter.setFont(small_font())
         painter.drawText(self.text_rect, _align(o), self.text)
         if self.value == 0:
             return
         t0, t1 = o.terminal_points()[:2]
         high, low = (t0, t1) if self.value > 0 else (t1, t0)
-        d = low - high
-        length = math.hypot(d.x(), d.y()) or 1.0
-        u = QPointF(d.x() / length, d.y() / length)
+        u = _unit(low - high)
         side = QPointF(0, 9 * o.side) if o.horizontal else QPointF(9 * o.side, 0)
         r = 3.2
         p = high + u * 9 + side

@@ -30,6 +30,7 @@ class HandAnalysis:
     def __init__(self, win) -> None:
         self.win = win
         self.state = AnalysisState(win)
+        self.state.live = self._live_result
         self.equations = EquationsPanel(self.state)
         self.checks = CheckPanel(self.state)
         self.equations_dock = self._dock("Equations", "equations", self.equations)
@@ -88,6 +89,12 @@ class HandAnalysis:
 
     def document_changed(self) -> None:
         self.state.request()
+
+    def _live_result(self):
+        """The window's newest solve if it is of the sketch as it is now, else None."""
+        solver = getattr(self.win, "solver", None)
+        latest = solver.latest if solver is not None else None
+        return latest if latest is not None and latest.generation == solver.generation else None
 
     def _name_readings(self) -> None:
         """Give the Readings panel each part's current by its branch name (tags included)."""

@@ -15,7 +15,7 @@ from dataclasses import dataclass, field
 
 from PySide6.QtCore import QObject, Signal
 
-from solver import CircuitError, solve
+from solver import CircuitError, Solution, solve
 
 from ..assess import Caution
 from ..sketch.model import Sketch
@@ -24,10 +24,9 @@ from .bench_results import assess_result, detached
 from .heap import settle
 from ..units import format_value
 
-__all__ = ["Result", "LiveSolver", "solve_sketch", "HAZARD_VOLTS"]
+__all__ = ["Result", "LiveSolver", "solve_sketch"]
 
 GridPoint = tuple[int, int]
-HAZARD_VOLTS = 60.0  # IEC 61010-1 §6.3.1: above 60 V DC counts as hazardous live
 
 
 @dataclass
@@ -48,6 +47,8 @@ class Result:
     cautions: list[str] = field(default_factory=list)
     summary: str = ""
     assessment: list[Caution] = field(default_factory=list)  # app.assess cautions, most severe first
+    netlist: Netlist | None = None    # what was solved, for the hand-analysis panels to reuse
+    solution: Solution | None = None
 
     @property
     def solved(self) -> bool:
@@ -105,7 +106,8 @@ def _inside(p: tuple[float, float], poly: list[tuple[float, float]]) -> bool:
 
 
 def _from_netlist(generation: int, netlist: Netlist, sketch: Sketch | None = None) -> Result:
-    res = Result(generation, junctions=list(netlist.junctions), open_ends=list(netlist.open_ends))
+    res = Result(generation, junctions=list(netlist.junctions), open_ends=list(netlist.open_ends),
+                 netlist=netlist)
     circuit = netlist.circuit
     names = [p.name for p in circuit.parts if not p.name.startswith("~")]
     if not names:
@@ -120,6 +122,7 @@ def _from_netlist(generation: int, netlist: Netlist, sketch: Sketch | None = Non
         res.error_wires = tuple(i for i, pieces in netlist.wire_parts.items() if named.intersection(pieces))
         res.summary = "Not solved: " + e.message
         return res
+    res.solution = sol
     # whole arrays at once: per-name lookups cost more than the solve on large sketches
     shown = set(names)
     res.readings = {n: r for n, r in zip(sol.parts, zip(sol.currents.tolist(), sol.voltages.tolist(),
@@ -129,11 +132,8 @@ def _from_netlist(generation: int, netlist: Netlist, sketch: Sketch | None = Non
         refs.add(sol.node_of(sol.ground))
     junctions = set(netlist.junctions)
     grid_of = {name: p for p, name in netlist.point_at.items()}
-    lo = hi = None
     for node, points in sol.nodes.items():
         v = sol.potential(points[0])
-        lo = v if lo is None else min(lo, v)
-        hi = v if hi is None else max(hi, v)
         if node in refs:
             continue
         grid = [grid_of.get(p) or _grid(p) for p in points]
@@ -148,12 +148,15 @@ def _from_netlist(generation: int, netlist: Netlist, sketch: Sketch | None = Non
             res.loops.append((c, loop.name, loop.current, loop.orientation != "anticlockwise"))
             res.loop_outlines.append(outline)
     res.notes = [n.message for n in sol.notes]
-    if lo is not None and hi - lo > HAZARD_VOLTS:
-        res.cautions.append(
-            f"Caution: {format_value(hi - lo, 'V')} between points of this circuit is above 60 V DC, "
-            "hazardous live (IEC 61010-1); follow local codes and licensed practice.")
     if sketch is not None:
         res.assessment = assess_result(sketch, netlist, sol)
+        # the status line carries the worst hazard in one sentence (app/assess decides what is hazardous)
+        hazards = [c.figures["voltage"] for c in res.assessment if c.kind.startswith("hazardous")]
+        if hazards:
+            worst = max(abs(v) for v in hazards)
+            res.cautions.append(
+                f"Caution: {format_value(worst, 'V')} in this circuit is above 60 V DC, hazardous live "
+                "(IEC 61010-1); follow local codes and licensed practice.")
     n_loops = len(sol.loops)
     res.summary = (f"Solved by mesh currents: {n_loops} loop{'s' if n_loops != 1 else ''}, "
                    f"{len(sol.nodes)} node{'s' if len(sol.nodes) != 1 else ''}.")
