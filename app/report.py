@@ -9,21 +9,14 @@ from collections.abc import Sequence
 
 from solver import Solution
 
+from .analysis.branches import node_labels
 from .assess import Caution
 from .units import format_value
 
-__all__ = ["solution_dict", "solution_table", "caution_dict", "node_labels", "CAUTION"]
+__all__ = ["solution_dict", "solution_table", "caution_dict", "CAUTION"]
 
 CAUTION = ("Results come from an idealised linear DC model: they are no substitute for "
            "measurement. Mains and high-energy work follows local codes and licensed practice.")
-
-
-def node_labels(sol: Solution) -> dict[str, str]:
-    """n1, n2, … for the nodes that touch a branch, in the solver's node order: the labels the
-    equations and the checker use (app/analysis/branches.py numbers them the same way)."""
-    g = sol.graph
-    touching = [n for n in sol.nodes if g.degree(n) > 0]
-    return {n: f"n{k + 1}" for k, n in enumerate(touching)}
 
 
 def _shown(name: str) -> bool:

@@ -16,7 +16,7 @@ from dataclasses import dataclass
 
 from solver import Circuit, Solution
 
-__all__ = ["CurrentTag", "Branch", "BranchSet", "TagError", "find_branches", "is_reserved_name"]
+__all__ = ["CurrentTag", "Branch", "BranchSet", "TagError", "find_branches", "is_reserved_name", "node_labels"]
 
 _RESERVED = re.compile(r"(V_|r_).*|IL\d+|V")
 
@@ -204,6 +204,15 @@ def _walks(sol: Solution) -> list[tuple[list[tuple[str, int]], list[str]]]:
     return walks
 
 
+def node_labels(sol: Solution) -> dict[str, str]:
+    """``n1``, ``n2``, … for the nodes that touch a branch, in the solver's node order.
+
+    The one numbering of nodes that equations, the checker and ``loopwright solve`` share.
+    """
+    g = sol.graph
+    return {n: f"n{k + 1}" for k, n in enumerate(n for n in sol.nodes if g.degree(n) > 0)}
+
+
 def find_branches(sol: Solution, circuit: Circuit, tags: tuple[CurrentTag, ...] | list[CurrentTag] = ()
                   ) -> BranchSet:
     """The branches of ``sol`` with their current names and directions.
@@ -262,8 +271,8 @@ def find_branches(sol: Solution, circuit: Circuit, tags: tuple[CurrentTag, ...] 
         p0, s0 = parts[0]
         branches.append(Branch(i, tuple(parts), tuple(nodes), name, tag is not None, s0 * sol.current(p0)))
 
-    touching = [n for n in sol.nodes if any(n in b.nodes for b in branches)]
-    label = {n: f"n{k + 1}" for k, n in enumerate(touching)}
+    label = node_labels(sol)
+    touching = list(label)
     ends: dict[str, int] = defaultdict(int)
     for b in branches:
         ends[b.start] += 1
