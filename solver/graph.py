@@ -128,11 +128,6 @@ class Forest:
     parent: np.ndarray
     edge: np.ndarray
     depth: np.ndarray
-    order: np.ndarray  # vertices in breadth-first order, roots first
-
-    @property
-    def roots(self) -> np.ndarray:
-        return np.flatnonzero(self.edge < 0)
 
 
 def bfs_forest(n: int, u: np.ndarray, v: np.ndarray, roots: np.ndarray,
@@ -152,7 +147,7 @@ def bfs_forest(n: int, u: np.ndarray, v: np.ndarray, roots: np.ndarray,
     cols = np.concatenate([v, u, roots])
     keep = rows != cols
     adj = coo_matrix((np.ones(int(keep.sum())), (rows[keep], cols[keep])), shape=(n + 1, n + 1)).tocsr()
-    order, pred = csgraph.breadth_first_order(adj, s, directed=True, return_predecessors=True)
+    _, pred = csgraph.breadth_first_order(adj, s, directed=True, return_predecessors=True)
     parent = pred[:n].copy()
     is_root = (parent == s) | (parent < 0)
     parent[is_root] = np.flatnonzero(is_root)
@@ -174,7 +169,7 @@ def bfs_forest(n: int, u: np.ndarray, v: np.ndarray, roots: np.ndarray,
         pos = np.searchsorted(skey, want)
         edge[x] = first[pos]
 
-    forest = Forest(parent=parent, edge=edge, depth=np.zeros(n, np.int64), order=order[order != s])
+    forest = Forest(parent=parent, edge=edge, depth=np.zeros(n, np.int64))
     forest.depth = accumulate_to_root(forest, np.ones(n, dtype=np.int64))
     return forest
 

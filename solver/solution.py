@@ -171,8 +171,3 @@ class Solution:
     def graph(self) -> nx.MultiGraph:
         """The circuit's topology as a networkx MultiGraph (built on first use)."""
         return multigraph(self._topo)
-
-    @property
-    def warnings(self) -> list[Note]:
-        """Alias of :attr:`notes`."""
-        return self.notes
