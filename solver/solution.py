@@ -171,3 +171,8 @@ class Solution:
     def graph(self) -> nx.MultiGraph:
         """The circuit's topology as a networkx MultiGraph (built on first use)."""
         return multigraph(self._topo)
+
+    @property
+    def warnings(self) -> list[Note]:
+        """The notes, under the name the design notes give them (a warning per island, open part…)."""
+        return self.notes
