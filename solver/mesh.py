@@ -147,7 +147,7 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
     own = sorted(int(r) for r in roots[with_branch] if r != ground_node)
     notes = _notes(topo, loops, i_br, own, ground_node)
     references = [topo.node_names[r] for r in own]
-    return Solution(topo, current, voltage, potential, loops, j, notes, ground, references)
+    return Solution(topo, current, voltage, potential, loops, j, notes, ground, references, label)
 
 
 def _preferred_references(topo: Topology, ground_node: int) -> np.ndarray:

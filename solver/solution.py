@@ -64,8 +64,10 @@ class Solution:
 
     def __init__(self, topo: Topology, current: np.ndarray, voltage: np.ndarray,
                  node_potential: np.ndarray, loopset: LoopSet | None, loop_current: np.ndarray,
-                 notes: list[Note], ground: str | None, references: list[str]) -> None:
+                 notes: list[Note], ground: str | None, references: list[str],
+                 island_of_node: np.ndarray | None = None) -> None:
         self._topo = topo
+        self._island_of_node = island_of_node
         self.currents = current
         self.voltages = voltage
         self.powers = voltage * current
@@ -139,6 +141,18 @@ class Solution:
     @property
     def points(self) -> list[str]:
         return list(self._topo.point_names)
+
+    @cached_property
+    def islands(self) -> list[list[str]]:
+        """The points of each connected piece of the circuit (open switches join nothing)."""
+        topo = self._topo
+        if self._island_of_node is None or topo.n_points == 0:
+            return [list(topo.point_names)] if topo.n_points else []
+        of_point = self._island_of_node[topo.node_of_point]
+        out: dict[int, list[str]] = {}
+        for name, k in zip(topo.point_names, of_point.tolist()):
+            out.setdefault(k, []).append(name)
+        return list(out.values())
 
     @cached_property
     def nodes(self) -> dict[str, list[str]]:

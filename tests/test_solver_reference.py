@@ -816,3 +816,20 @@ def test_random_wide_range_circuits_keep_the_laws(case):
         return
     assert regular is not False, f"solver accepted a singular circuit\n{_describe(c, ground)}"
     check_laws(c, sol)
+
+
+def test_islands_are_the_connected_pieces_networkx_finds():
+    # networkx connected_components (reference library) over every part but open switches
+    c = Circuit()
+    c.cell("B1", plus="a", minus="b", emf=9.0, internal_resistance=1.0)
+    c.resistor("R1", "a", "b", 10.0)
+    c.switch("S1", "b", "c", closed=False)           # joins nothing
+    c.resistor("R2", "c", "d", 5.0)
+    c.wire("W1", "d", "e")
+    c.current_source("I1", "e", "c", 0.1)
+    c.resistor("R3", "x", "y", 1.0)
+    g = nx.Graph()
+    g.add_nodes_from(c.points)
+    g.add_edges_from((p.a, p.b) for p in c.parts if not (p.kind == "switch" and not p.closed))
+    expected = sorted(sorted(comp) for comp in nx.connected_components(g))
+    assert sorted(sorted(isl) for isl in solve(c).islands) == expected

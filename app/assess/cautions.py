@@ -21,7 +21,7 @@ from ..sketch.model import PlacedPart, Sketch
 from ..sketch.netlist import Netlist
 from ..units import format_value
 from .meters import display_reading, read_meters
-from .topology import is_source, islands, parallel_parts, series_partners
+from .topology import is_source, parallel_parts, series_partners
 
 __all__ = [
     "Caution", "assess", "DISCLAIMER", "HAZARD_VOLTAGE", "RESISTOR_DERATING", "SHORTED_FRACTION",
@@ -89,7 +89,7 @@ def _hazards(sketch: Sketch, sol: Solution, net: Netlist) -> Iterator[Caution]:
                           f"{p.name} has {_v(abs(v), 'V')} across it, above {HAZARD_VOLTAGE:g} V DC: "
                           "hazardous live (IEC 61010-1). Do not touch; work on it dead.",
                           {"voltage": v, "limit": HAZARD_VOLTAGE})
-    for island in islands(net.circuit):
+    for island in sol.islands:
         points = sorted(island)
         pots = {pt: sol.potential(pt) for pt in points}
         hi, lo = max(points, key=pots.get), min(points, key=pots.get)
@@ -187,7 +187,7 @@ def _lamp(p: PlacedPart, sol: Solution) -> Iterator[Caution]:
 def _supply(net: Netlist, sol: Solution) -> dict[str, float]:
     """Each point's island supply voltage: the largest potential difference in its island."""
     out: dict[str, float] = {}
-    for island in islands(net.circuit):
+    for island in sol.islands:
         pots = [sol.potential(pt) for pt in island]
         span = max(pots) - min(pots)
         out.update(dict.fromkeys(island, span))

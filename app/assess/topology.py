@@ -1,4 +1,4 @@
-"""How parts sit against each other: nodes, islands, and series or parallel placement.
+"""How parts sit against each other: nodes, and series or parallel placement.
 
 Used to spot the two classic bench mistakes, a voltmeter in series and an
 ammeter across a part, from the circuit's connections alone.
@@ -10,7 +10,7 @@ import networkx as nx
 from solver import Circuit, Part
 from solver.circuit import CELL, CURRENT_SOURCE
 
-__all__ = ["node_map", "islands", "series_partners", "parallel_parts", "is_source"]
+__all__ = ["node_map", "series_partners", "parallel_parts", "is_source"]
 
 
 def is_source(part: Part) -> bool:
@@ -27,14 +27,6 @@ def node_map(circuit: Circuit, skip: str | None = None) -> dict[str, int]:
     g.add_nodes_from(circuit.points)
     g.add_edges_from((p.a, p.b) for p in circuit.parts if p.is_conductor and p.name != skip)
     return {point: k for k, comp in enumerate(nx.connected_components(g)) for point in comp}
-
-
-def islands(circuit: Circuit) -> list[set[str]]:
-    """The points of each connected piece of the circuit (every part but open switches joins)."""
-    g = nx.Graph()
-    g.add_nodes_from(circuit.points)
-    g.add_edges_from((p.a, p.b) for p in circuit.parts if p.is_conductor or p.is_branch)
-    return [set(c) for c in nx.connected_components(g)]
 
 
 def _branch_graph(circuit: Circuit, nodes: dict[str, int], leave_out: str) -> nx.MultiGraph:
