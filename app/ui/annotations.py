@@ -194,8 +194,12 @@ class _PartMark(QGraphicsItem):
             slot = o.line_rect(self.LINE, w).united(self.text_rect)
             if o.horizontal:
                 slot.adjust(-20, 0, 0, 0)  # the arrow drawn left of the text
-            self._bounds = slot.united(o.outline.adjusted(-16, -16, 16, 16))
+            self._bounds = slot.united(self._beside_body()).adjusted(-1, -1, 1, 1)
         self.update()
+
+    def _beside_body(self) -> QRectF:
+        """What the mark draws at the part's body, apart from its text (none here)."""
+        return QRectF()
 
     def boundingRect(self) -> QRectF:
         return self._bounds
@@ -250,6 +254,15 @@ class DropMark(_PartMark):
 
     LINE = 3
     UNIT = "V"
+
+    def _beside_body(self) -> QRectF:
+        """The + and − marks: 9 px in from the terminals and 9 px out to the side, 3.2 px arms."""
+        o = self.owner
+        t0, t1 = o.terminal_points()[:2]
+        ends = QRectF(t0, t1).normalized()
+        side = 9 * o.side
+        ends.translate(0, side) if o.horizontal else ends.translate(side, 0)
+        return ends.adjusted(-5, -5, 5, 5)
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
         if not self._begin(painter, current_theme().drop):

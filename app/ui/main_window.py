@@ -10,7 +10,7 @@ from pathlib import Path
 from PySide6.QtCore import QItemSelection, QItemSelectionModel, QSettings, Qt, QTimer, Signal
 from PySide6.QtGui import QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QUndoStack
 from PySide6.QtWidgets import (QApplication, QDockWidget, QFileDialog, QLabel, QMainWindow,
-                               QMessageBox, QToolBar, QToolButton, QVBoxLayout, QWidget)
+                               QMessageBox, QSizePolicy, QToolBar, QToolButton, QVBoxLayout, QWidget)
 
 from ..sketch.fileio import SaveError, SketchFileError, load_sketch, save_sketch
 from ..sketch.kinds import KINDS
@@ -92,6 +92,8 @@ class MainWindow(QMainWindow):
         self.hint_text = QLabel()
         self.hint_text.setObjectName("hint")
         self.where = QLabel()
+        for label in (self.status_text, self.hint_text):  # new text: no relayout of the status line
+            label.setSizePolicy(QSizePolicy.Policy.Ignored, QSizePolicy.Policy.Preferred)
         self.statusBar().addWidget(self.status_text, 3)
         self.statusBar().addPermanentWidget(self.hint_text, 2)
         self.statusBar().addPermanentWidget(self.where)

@@ -190,16 +190,16 @@ class SketchScene(QGraphicsScene):
         return sorted(i.index for i in self.selectedItems() if isinstance(i, WireItem))
 
     def select(self, parts: Iterable[str] = (), wires: Iterable[int] = ()) -> None:
-        """Select exactly these parts and wires."""
+        """Select exactly these parts and wires (no signal when that is already the selection)."""
+        want = {self.part_items[n] for n in parts if n in self.part_items}
+        want.update(self.wire_items[i] for i in wires if 0 <= i < len(self.wire_items))
+        if set(self.selectedItems()) == want:
+            return
         self.blockSignals(True)
         try:
             self.clearSelection()
-            for n in parts:
-                if n in self.part_items:
-                    self.part_items[n].setSelected(True)
-            for i in wires:
-                if 0 <= i < len(self.wire_items):
-                    self.wire_items[i].setSelected(True)
+            for item in want:
+                item.setSelected(True)
         finally:
             self.blockSignals(False)
         self.selectionChanged.emit()
