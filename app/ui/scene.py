@@ -357,7 +357,7 @@ class SketchScene(QGraphicsScene):
         """(left, top, right, bottom, weight) of what lies in ``area``: texts and marks weigh
         heavily, symbol margins and wires lightly."""
         out = []
-        for i in self.items(area):
+        for i in self.items(area, Qt.ItemSelectionMode.IntersectsItemBoundingRect):
             if i is me or not i.isVisible():
                 continue
             if isinstance(i, WireItem):
@@ -368,62 +368,79 @@ class SketchScene(QGraphicsScene):
             out.extend((r.left(), r.top(), r.right(), r.bottom(), w) for r, w in weighted)
         return out
 
+    _LAYOUTS = [(side, compact) for compact in (False, True) for side in LoopMark.SIDES]
+
     @classmethod
-    def _offsets(cls, compact: bool) -> np.ndarray:
-        """Candidate offsets from a window's centre, nearest first (cached per layout)."""
-        key = "_offsets_compact" if compact else "_offsets_full"
-        cached = getattr(cls, key, None)
+    def _candidates(cls) -> np.ndarray:
+        """Every candidate place as (layout, x step, y step) in order of preference: full
+        layout before compact, nearest offset first, sides in order. ``layout`` indexes
+        ``_LAYOUTS``; the steps index ``LOOP_STEPS`` or ``COMPACT_STEPS``. The same for
+        every mark, so worked out once."""
+        cached = getattr(cls, "_candidates_cache", None)
         if cached is None:
-            steps = cls.COMPACT_STEPS if compact else cls.LOOP_STEPS
-            pairs = sorted(((dx, dy) for dx in steps for dy in steps), key=lambda d: d[0] * d[0] + d[1] * d[1])
-            cached = np.array(pairs, dtype=float)
-            setattr(cls, key, cached)
+            rows = []
+            for compact in (False, True):
+                steps = cls.COMPACT_STEPS if compact else cls.LOOP_STEPS
+                pairs = sorted(((ix, iy) for ix in range(len(steps)) for iy in range(len(steps))),
+                               key=lambda d: steps[d[0]] ** 2 + steps[d[1]] ** 2)
+                for k, (ix, iy) in enumerate(pairs):
+                    for n, side in enumerate(LoopMark.SIDES):
+                        rows.append((compact, k, n, cls._LAYOUTS.index((side, compact)), ix, iy))
+            rows.sort(key=lambda r: r[:3])
+            cached = np.array([r[3:] for r in rows])
+            cls._candidates_cache = cached
         return cached
+
+    @staticmethod
+    def _overlap(lo: np.ndarray, hi: np.ndarray, cover_lo: np.ndarray, cover_hi: np.ndarray) -> np.ndarray:
+        """Length by which each span [lo, hi] overlaps each cover span (rows: spans, columns: covers)."""
+        return np.maximum(np.minimum(hi[:, None], cover_hi) - np.maximum(lo[:, None], cover_lo), 0.0)
 
     def _place_loop(self, mark: LoopMark) -> None:
         """Put a loop mark where it covers nothing inside its window: near the centre, text on
         any side; failing that the name alone (current in its tooltip); failing that, least covered.
 
-        All candidate places are scored at once with numpy (overlap area with texts weighted
-        far above symbol margins and wires); only the winners are tested against the
-        window's outline, which is the one check that needs Qt.
+        Every candidate place is scored at once: a place is a box of one layout moved by an
+        x and a y step, so its overlap area with a cover is (x overlap) × (y overlap), and
+        the weighted sum over covers of one layout is one matrix product of the x-overlap
+        and y-overlap tables (texts weigh far above symbol margins and wires). Only the
+        winners are tested against the window's outline, the one check that needs Qt.
         """
         outlined = not mark.outline.isEmpty()
         area = mark.outline.boundingRect() if outlined else QRectF(mark.home, mark.home)
         covers = np.array(self._weighted_covers(area.adjusted(-60, -60, 60, 60), mark), dtype=float).reshape(-1, 5)
-        cands, layouts = [], []
-        for compact in (False, True):
-            off = self._offsets(compact)
-            for side in LoopMark.SIDES:
-                r = mark.rect_at(side, compact)
-                base = np.array([r.left(), r.top(), r.right(), r.bottom()])
-                at = off + np.array([mark.home.x(), mark.home.y()])
-                cands.append(np.hstack([at, at[:, [0, 1, 0, 1]] + base]))
-                layouts.extend((side, compact, k) for k in range(len(off)))
-        c = np.vstack(cands)   # columns: x, y, left, top, right, bottom
-        # preference order: full layout before compact, nearest offset first, sides in order
-        order = np.lexsort((np.array([LoopMark.SIDES.index(s) for s, _, _ in layouts]),
-                            np.array([k for _, _, k in layouts]),
-                            np.array([cp for _, cp, _ in layouts])))
-        c = c[order]
-        layouts = [layouts[i] for i in order]
-        ok = np.ones(len(c), bool)
-        if outlined:
-            box = mark.outline.boundingRect()
-            ok = (c[:, 2] >= box.left()) & (c[:, 3] >= box.top()) & (c[:, 4] <= box.right()) & (c[:, 5] <= box.bottom())
-        if len(covers):
-            dx = np.minimum(c[:, 4:5], covers[:, 2]) - np.maximum(c[:, 2:3], covers[:, 0])
-            dy = np.minimum(c[:, 5:6], covers[:, 3]) - np.maximum(c[:, 3:4], covers[:, 1])
-            cost = (np.clip(dx, 0, None) * np.clip(dy, 0, None) * covers[:, 4]).sum(axis=1)
-        else:
-            cost = np.zeros(len(c))
+        box = area if outlined else None
+        hx, hy = mark.home.x(), mark.home.y()
+        costs, inside, starts = [], [], [0]
+        for side, compact in self._LAYOUTS:
+            steps = np.array(self.COMPACT_STEPS if compact else self.LOOP_STEPS)
+            r = mark.rect_at(side, compact)
+            left, right = hx + steps + r.left(), hx + steps + r.right()
+            top, bottom = hy + steps + r.top(), hy + steps + r.bottom()
+            ox = self._overlap(left, right, covers[:, 0], covers[:, 2])
+            oy = self._overlap(top, bottom, covers[:, 1], covers[:, 3])
+            costs.append(((ox * covers[:, 4]) @ oy.T).ravel())   # [x step, y step]
+            if box is None:
+                inside.append(np.ones(len(steps) ** 2, bool))
+            else:
+                in_x = (left >= box.left()) & (right <= box.right())
+                in_y = (top >= box.top()) & (bottom <= box.bottom())
+                inside.append((in_x[:, None] & in_y[None, :]).ravel())
+            starts.append(starts[-1] + len(steps) ** 2)
+        cand = self._candidates()
+        sizes = np.array([len(self.COMPACT_STEPS if compact else self.LOOP_STEPS) for _, compact in self._LAYOUTS])
+        flat = np.array(starts[:-1])[cand[:, 0]] + cand[:, 1] * sizes[cand[:, 0]] + cand[:, 2]
+        cost = np.concatenate(costs)[flat]
+        ok = np.concatenate(inside)[flat]
+        allowed = np.flatnonzero(ok)
         # best first: every free place in preference order, then the least covered
-        ranked = np.lexsort((np.arange(len(c)), cost))
-        for i in ranked[ok[ranked]]:
-            at = QPointF(c[i, 0], c[i, 1])
+        for i in allowed[np.lexsort((allowed, cost[allowed]))]:
+            layout, ix, iy = cand[i]
+            side, compact = self._LAYOUTS[layout]
+            steps = self.COMPACT_STEPS if compact else self.LOOP_STEPS
+            at = QPointF(hx + steps[ix], hy + steps[iy])
             if outlined and not mark.outline.containsPoint(at, Qt.FillRule.OddEvenFill):
                 continue
-            side, compact, _ = layouts[i]
             mark.setPos(at)
             mark.set_layout(side, compact)
             return
