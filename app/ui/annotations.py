@@ -10,14 +10,14 @@ from __future__ import annotations
 import math
 
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
-from PySide6.QtGui import QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF, QTextOption
+from PySide6.QtGui import QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF, QStaticText, QTextOption
 from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
 
 from ..units import format_value
 from .items import CACHE, Z_MARK, Z_NOTE, PartItem, _paint_warning_sign, too_small
 from .theme import current_theme, small_font
 
-__all__ = ["CurrentMark", "DropMark", "PotentialTag", "LoopMark", "FaultNote", "LAYERS"]
+__all__ = ["CurrentMark", "DropMark", "ReadingLayer", "PotentialTag", "LoopMark", "FaultNote", "LAYERS"]
 
 LAYERS = {
     "currents": "Current arrows",
@@ -36,24 +36,39 @@ def _fm() -> QFontMetricsF:
     return _FM
 
 
-def _unit(d: QPointF) -> QPointF:
-    """``d`` scaled to length 1 (a zero vector stays zero)."""
-    length = math.hypot(d.x(), d.y()) or 1.0
-    return QPointF(d.x() / length, d.y() / length)
+def _unit_xy(dx: float, dy: float) -> tuple[float, float]:
+    """(dx, dy) scaled to length 1 (a zero vector stays zero)."""
+    length = math.hypot(dx, dy) or 1.0
+    return dx / length, dy / length
 
 
-def _arrow_head(tip: QPointF, direction: QPointF, size: float = 5.0) -> QPolygonF:
-    dx, dy = direction.x(), direction.y()
-    back = QPointF(tip.x() - dx * size, tip.y() - dy * size)
+def _arrow_head(x: float, y: float, dx: float, dy: float, size: float = 5.0) -> QPolygonF:
+    """A filled arrow head with its tip at (x, y) pointing along the unit vector (dx, dy)."""
+    bx, by = x - dx * size, y - dy * size
     nx, ny = -dy * size * 0.6, dx * size * 0.6
-    return QPolygonF([tip, QPointF(back.x() + nx, back.y() + ny), QPointF(back.x() - nx, back.y() - ny)])
+    return QPolygonF([QPointF(x, y), QPointF(bx + nx, by + ny), QPointF(bx - nx, by - ny)])
+
+
+_CENTRE = int(Qt.AlignmentFlag.AlignCenter)
+_LEFT = int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter)
+_RIGHT = int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
 
 
 def _align(o: PartItem) -> int:
-    if o.horizontal:
-        return int(Qt.AlignmentFlag.AlignCenter)
-    h = Qt.AlignmentFlag.AlignLeft if o.side > 0 else Qt.AlignmentFlag.AlignRight
-    return int(h | Qt.AlignmentFlag.AlignVCenter)
+    """Text beside a part: centred under or over a horizontal one, away from an upright one."""
+    return _CENTRE if o.horizontal else _LEFT if o.side > 0 else _RIGHT
+
+
+_PENS: dict[tuple[int, float], QPen] = {}
+
+
+def _pen(colour, width: float) -> QPen:
+    """A pen of ``colour`` (a QColor) and ``width``, made once."""
+    key = (colour.rgba(), width)
+    pen = _PENS.get(key)
+    if pen is None:
+        pen = _PENS[key] = QPen(colour, width)
+    return pen
 
 
 _SLOTS: dict[str, float] = {}
@@ -87,28 +102,37 @@ class _PartMark(QGraphicsItem):
     Its box is the room the widest ordinary text needs, so a new value only
     asks for a repaint: the text is written when the mark is painted (or read),
     and a mark scrolled out of sight or too small to read costs no formatting.
+
+    The mark is an item for hit tests and layout, but it has no contents: its
+    ``ReadingLayer`` paints it together with every other part's marks.
     """
 
     LINE = 0
     ROOM = 0  # space kept beside the text for an arrow on upright parts
     UNIT = ""
 
-    def __init__(self, parent: PartItem) -> None:
+    def __init__(self, parent: PartItem, layer: ReadingLayer) -> None:
         super().__init__(parent)
         self.setZValue(Z_MARK)
-        self.setCacheMode(CACHE)
+        self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, True)
+        self.layer = layer
+        self._scene_box = (0.0, 0.0, 0.0, 0.0)  # the box in scene coordinates: left, top, right, bottom
+        layer.add(self)
         self.value: float | None = None
         self._key = ""  # ``_rounded(value)``: what the text and arrow follow
         self._text = ""
         self._text_of: float | None = None  # the value ``_text`` was written for
         self._text_rect: QRectF | None = None
         self._bounds = QRectF()
+        self._owner = parent
+        self._advance = 0.0  # the width of the text ``_text_rect`` was laid out for
+        self._fig: tuple | None = None  # what ``_lay_out`` worked out for the present text and layout
         self._visible = False  # what was last asked of setVisible (asking Qt again costs a call)
         self.setVisible(False)
 
     @property
     def owner(self) -> PartItem:
-        return self.parentItem()  # type: ignore[return-value]
+        return self._owner
 
     @property
     def text(self) -> str:
@@ -127,7 +151,8 @@ class _PartMark(QGraphicsItem):
         text = self.text
         if self._text_rect is None:
             o = self.owner
-            w = _fm().horizontalAdvance(text) + 2 + (0 if o.horizontal else self.ROOM)
+            self._advance = _fm().horizontalAdvance(text)
+            w = self._advance + 2 + (0 if o.horizontal else self.ROOM)
             self._text_rect = o.line_rect(self.LINE, w)
         return self._text_rect
 
@@ -153,8 +178,9 @@ class _PartMark(QGraphicsItem):
                     self._text_of = value  # the text and the arrow stay as they are
             elif was_shown and _fits_slot(value):
                 self._text_rect = None
+                self._fig = None
                 if readable:
-                    self.update()
+                    self.repaint()
             else:
                 self.relayout()
         self._show(self._layer_on)
@@ -169,24 +195,41 @@ class _PartMark(QGraphicsItem):
         if on != self._visible:
             self._visible = on
             self.setVisible(on)
+            self.repaint()
+
+    def repaint(self) -> None:
+        """Ask the layer to paint the mark's box again."""
+        left, top, right, bottom = self._scene_box
+        if right > left:
+            self.layer.update(QRectF(left, top, right - left, bottom - top))
 
     def _format(self, value: float) -> str:
         return format_value(abs(value), self.UNIT)
 
-    def _begin(self, painter: QPainter, colour) -> bool:
-        """Set up the painter in the mark's colour; False when there is nothing to draw."""
-        if self.value is None or too_small(painter):
-            return False
-        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
-        painter.setPen(QPen(colour, 1.4))
-        painter.setFont(small_font())
-        return True
+    def _lay_out(self, text: str) -> tuple:
+        """(text's top left, static text, lines, arrow head or None) in scene coordinates."""
+        raise NotImplementedError
+
+    def _text_at(self, box: QRectF, align: int, text: str) -> tuple[QPointF, QStaticText]:
+        """Where ``text`` goes in ``box`` with ``align`` (as ``drawText`` would put it), and the
+        text ready to draw: a static text is laid out once, not on every paint."""
+        if align == _CENTRE:
+            x = box.left() + (box.width() - self._advance) / 2
+        elif align == _LEFT:
+            x = box.left()
+        else:
+            x = box.right() - self._advance
+        st = QStaticText(text)
+        st.setTextFormat(Qt.TextFormat.PlainText)
+        return QPointF(x, box.top() + (box.height() - _fm().height()) / 2), st
 
     def relayout(self) -> None:
         """Lay the box out again (the owner moved or turned, or an unusual value came)."""
         self.prepareGeometryChange()
+        self.repaint()  # where it was
         o = self.owner
         self._text_rect = None
+        self._fig = None
         if self.value is None:
             self._bounds = QRectF()
         else:
@@ -195,7 +238,25 @@ class _PartMark(QGraphicsItem):
             if o.horizontal:
                 slot.adjust(-20, 0, 0, 0)  # the arrow drawn left of the text
             self._bounds = slot.united(self._beside_body()).adjusted(-1, -1, 1, 1)
-        self.update()
+        box = self._bounds.translated(o.pos())
+        self._scene_box = (box.left(), box.top(), box.right(), box.bottom())
+        self.layer.grow(box)
+        self.repaint()
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        """Nothing: the layer paints the mark (see ``draw``)."""
+
+    def draw(self, painter: QPainter, lines: list[QLineF], heads: QPainterPath) -> None:
+        """Paint the text with the layer's painter, in scene coordinates (pen and font are the
+        layer's); lines and arrow heads go to ``lines`` and ``heads``, drawn all at once."""
+        fig = self._fig
+        if fig is None:
+            fig = self._fig = self._lay_out(self.text)
+        at, st, mark_lines, head = fig
+        painter.drawStaticText(at, st)
+        lines.extend(mark_lines)
+        if head is not None:
+            heads.addPolygon(head)
 
     def _beside_body(self) -> QRectF:
         """What the mark draws at the part's body, apart from its text (none here)."""
@@ -223,30 +284,29 @@ class CurrentMark(_PartMark):
     ROOM = 14
     UNIT = "A"
 
-    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
-        th = current_theme()
-        if not self._begin(painter, th.current):
-            return
+    def _lay_out(self, text: str) -> tuple:
         o = self.owner
-        tr = self.text_rect
+        r = self.text_rect.translated(o.pos())
+        box = r
         if not o.horizontal:
-            tr = tr.adjusted(self.ROOM, 0, 0, 0) if o.side > 0 else tr.adjusted(0, 0, -self.ROOM, 0)
-        painter.drawText(tr, _align(o), self.text)
+            box = r.adjusted(self.ROOM, 0, 0, 0) if o.side > 0 else r.adjusted(0, 0, -self.ROOM, 0)
+        at, st = self._text_at(box, _align(o), text)
         if self.value == 0:
-            return
-        t0, t1 = o.terminal_points()[:2]
-        u = _unit(t1 - t0) if self.value > 0 else _unit(t0 - t1)
-        r = self.text_rect
+            return at, st, [], None
+        x0, y0, x1, y1 = o.ends
+        ux, uy = _unit_xy(x1 - x0, y1 - y0)
+        if self.value < 0:
+            ux, uy = -ux, -uy
+        cy = r.top() + r.height() / 2
         if o.horizontal:
-            mid = QPointF(r.left() - 10, r.center().y())
+            mx, my = r.left() - 10, cy
         elif o.side > 0:
-            mid = QPointF(r.left() + 6, r.center().y() + 1)
+            mx, my = r.left() + 6, cy + 1
         else:
-            mid = QPointF(r.right() - 6, r.center().y() + 1)
-        a, b = mid - u * 8, mid + u * 8
-        painter.drawLine(QLineF(a, b - u * 3))
-        painter.setBrush(th.current)
-        painter.drawPolygon(_arrow_head(b, u))
+            mx, my = r.right() - 6, cy + 1
+        tip_x, tip_y = mx + 8 * ux, my + 8 * uy
+        shaft = QLineF(mx - 8 * ux, my - 8 * uy, tip_x - 3 * ux, tip_y - 3 * uy)
+        return at, st, [shaft], _arrow_head(tip_x, tip_y, ux, uy)
 
 
 class DropMark(_PartMark):
@@ -264,23 +324,91 @@ class DropMark(_PartMark):
         ends.translate(0, side) if o.horizontal else ends.translate(side, 0)
         return ends.adjusted(-5, -5, 5, 5)
 
-    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
-        if not self._begin(painter, current_theme().drop):
-            return
+    def _lay_out(self, text: str) -> tuple:
         o = self.owner
-        painter.drawText(self.text_rect, _align(o), self.text)
+        pos = o.pos()
+        at, st = self._text_at(self.text_rect.translated(pos), _align(o), text)
         if self.value == 0:
-            return
-        t0, t1 = o.terminal_points()[:2]
-        high, low = (t0, t1) if self.value > 0 else (t1, t0)
-        u = _unit(low - high)
-        side = QPointF(0, 9 * o.side) if o.horizontal else QPointF(9 * o.side, 0)
+            return at, st, [], None
+        x0, y0, x1, y1 = o.ends
+        if self.value < 0:
+            x0, y0, x1, y1 = x1, y1, x0, y0
+        ux, uy = _unit_xy(x1 - x0, y1 - y0)   # from the higher terminal to the lower
+        sx, sy = (0.0, 9.0 * o.side) if o.horizontal else (9.0 * o.side, 0.0)
+        sx, sy = sx + pos.x(), sy + pos.y()
         r = 3.2
-        p = high + u * 9 + side
-        painter.drawLine(QLineF(p.x() - r, p.y(), p.x() + r, p.y()))
-        painter.drawLine(QLineF(p.x(), p.y() - r, p.x(), p.y() + r))
-        m = low - u * 9 + side
-        painter.drawLine(QLineF(m.x() - r, m.y(), m.x() + r, m.y()))
+        px, py = x0 + 9 * ux + sx, y0 + 9 * uy + sy
+        mx, my = x1 - 9 * ux + sx, y1 - 9 * uy + sy
+        lines = [QLineF(px - r, py, px + r, py), QLineF(px, py - r, px, py + r), QLineF(mx - r, my, mx + r, my)]
+        return at, st, lines, None
+
+
+class ReadingLayer(QGraphicsItem):
+    """Paints every part's current and drop marks in one pass.
+
+    Each mark stays an item of its own (hit tests, layout, visibility) with no contents:
+    hundreds of tiny items each cost a call into Python, a cached picture and a painter of
+    their own on every change, where one item drawing them all costs little more than the
+    texts and lines themselves. Marks ask for their box to be repainted (``update(rect)``);
+    the layer draws only those in the exposed area.
+    """
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.setZValue(Z_MARK)
+        self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemUsesExtendedStyleOption, True)
+        self.setAcceptedMouseButtons(Qt.MouseButton.NoButton)
+        self._marks: tuple[dict[int, _PartMark], dict[int, _PartMark]] = ({}, {})  # currents, drops
+        self._bounds = QRectF()
+
+    def add(self, mark: _PartMark) -> None:
+        """Paint ``mark`` from now on."""
+        self._marks[isinstance(mark, DropMark)][id(mark)] = mark
+
+    def forget(self, owner: PartItem) -> None:
+        """Stop painting the marks of ``owner`` (it leaves the drawing)."""
+        for mark in (owner.current_mark, owner.drop_mark):
+            if mark is not None:
+                mark.repaint()
+                self._marks[isinstance(mark, DropMark)].pop(id(mark), None)
+
+    def grow(self, rect: QRectF) -> None:
+        """Make room for a mark's box (the layer's box only grows: a larger one costs nothing)."""
+        if not self._bounds.contains(rect):
+            self.prepareGeometryChange()
+            self._bounds = self._bounds.united(rect)
+
+    def boundingRect(self) -> QRectF:
+        return self._bounds
+
+    def drawn_rect(self) -> QRectF:
+        """Nothing of its own: the marks say what they cover."""
+        return QRectF()
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        if too_small(painter):
+            return
+        ex = option.exposedRect
+        left, top, right, bottom = ex.left(), ex.top(), ex.right(), ex.bottom()
+        th = current_theme()
+        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
+        painter.setFont(small_font())
+        for marks, colour in zip(self._marks, (th.current, th.drop)):
+            painter.setPen(_pen(colour, 1.4))
+            lines: list[QLineF] = []
+            heads = QPainterPath()
+            for mark in marks.values():
+                if not mark._visible:
+                    continue
+                ml, mt, mr, mb = mark._scene_box
+                if mr < left or ml > right or mb < top or mt > bottom:
+                    continue
+                mark.draw(painter, lines, heads)
+            if lines:
+                painter.drawLines(lines)
+            if not heads.isEmpty():
+                painter.setBrush(colour)
+                painter.drawPath(heads)
 
 
 class PotentialTag(QGraphicsItem):
@@ -449,7 +577,7 @@ class LoopMark(QGraphicsItem):
         tx = -math.sin(math.radians(end_deg)) * sgn
         ty = -math.cos(math.radians(end_deg)) * sgn
         painter.setBrush(th.loop)
-        painter.drawPolygon(_arrow_head(tip + QPointF(tx, ty) * 2, QPointF(tx, ty), 6))
+        painter.drawPolygon(_arrow_head(tip.x() + tx * 2, tip.y() + ty * 2, tx, ty, 6))
         painter.setFont(small_font())
         painter.drawText(self._text_rect, int(Qt.AlignmentFlag.AlignCenter), self.text)
 

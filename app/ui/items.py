@@ -131,6 +131,8 @@ class PartItem(QGraphicsItem):
         self.outline = t.mapRect(symbol_outline(p.kind))
         self.centre = t.map(body_centre(p.kind))
         self.horizontal = p.rotation % 180 == 0
+        t0, t1 = self.terminal_points()[:2] if p.kind != "ground" else (QPointF(), QPointF())
+        self.ends = (t0.x(), t0.y(), t1.x(), t1.y())  # first and second terminal, for the marks
         if p.kind == "ground":
             self.lines = []
         elif self.horizontal:

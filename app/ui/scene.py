@@ -16,7 +16,7 @@ from PySide6.QtGui import QPolygonF
 from PySide6.QtWidgets import QGraphicsScene, QStyleOptionGraphicsItem
 
 from ..sketch.model import Sketch
-from .annotations import CurrentMark, DropMark, FaultNote, LoopMark, PotentialTag
+from .annotations import CurrentMark, DropMark, FaultNote, LoopMark, PotentialTag, ReadingLayer
 from .items import TEXT_LOD, JunctionDot, LooseEnd, PartItem, WireItem, to_scene
 from .symbols import IEC
 from .theme import GRID
@@ -43,6 +43,8 @@ class SketchScene(QGraphicsScene):
         self._loose: list[LooseEnd] = []
         self._tags: list[PotentialTag] = []
         self._loops: list[LoopMark] = []
+        self._readings = ReadingLayer()  # paints every part's current and drop marks
+        self.addItem(self._readings)
         self._note = FaultNote()
         self._note.setVisible(False)
         self.addItem(self._note)
@@ -83,8 +85,8 @@ class SketchScene(QGraphicsScene):
     def _new_part_item(self, part) -> PartItem:
         item = PartItem(part, self.style)
         if part.kind != "ground":
-            item.current_mark = CurrentMark(item)
-            item.drop_mark = DropMark(item)
+            item.current_mark = CurrentMark(item, self._readings)
+            item.drop_mark = DropMark(item, self._readings)
             item.current_mark.set_layer(self.layers["currents"])
             item.drop_mark.set_layer(self.layers["drops"])
         else:
@@ -105,20 +107,24 @@ class SketchScene(QGraphicsScene):
                 del shown[name]
                 self._axis.pop(name, None)
                 self._marked.pop(name, None)
-                self.removeItem(items.pop(name))
+                self._remove_part_item(items.pop(name))
         for part in changed:
             name = part.name
             item = items.get(name)
             if item is None:
                 items[name] = item = self._new_part_item(part)
             elif item.part.kind != part.kind:
-                self.removeItem(item)
+                self._remove_part_item(item)
                 items[name] = item = self._new_part_item(part)
             else:
                 item.set_part(part)
             shown[name] = part
             self._axis[name] = self._label_axis(item)
         self._orient_labels(parts, {p.name for p in changed})
+
+    def _remove_part_item(self, item: PartItem) -> None:
+        self._readings.forget(item)
+        self.removeItem(item)
 
     @staticmethod
     def _label_axis(item: PartItem) -> tuple[bool, float]:
