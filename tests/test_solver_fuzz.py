@@ -136,7 +136,12 @@ def check_solution(c: Circuit, sol) -> None:
         members = [p for p in parts if island[p.a] == k]
         ohms = math.fsum(p.resistance for p in members)
         amps = math.fsum(p.current for p in members)
-        v_isl[k] = max(v_isl[k], math.fsum(p.emf for p in members) + amps * ohms)
+        emf = math.fsum(p.emf for p in members)
+        v_isl[k] = max(v_isl[k], emf + amps * ohms)
+        # likewise a current's scale: set currents plus what the EMFs drive through the smallest
+        # resistance (a cell of 1000 V behind 1e18 ohm drives 1e-15 A: noise far below it is zero)
+        least = min((p.resistance for p in members if p.resistance > 0), default=0.0)
+        i_isl[k] = max(i_isl[k], amps + (emf / least if least else 0.0))
 
     def v_floor(point: str) -> float:
         return NOISE * v_isl.get(island[point], 0.0)
