@@ -246,17 +246,17 @@ class _PartMark(QGraphicsItem):
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
         """Nothing: the layer paints the mark (see ``draw``)."""
 
-    def draw(self, painter: QPainter, lines: list[QLineF], heads: QPainterPath) -> None:
-        """Paint the text with the layer's painter, in scene coordinates (pen and font are the
-        layer's); lines and arrow heads go to ``lines`` and ``heads``, drawn all at once."""
+    def draw(self, painter: QPainter, lines: list[QLineF]) -> None:
+        """Paint the text and arrow head with the layer's painter, in scene coordinates (pen,
+        brush and font are the layer's); the mark's lines go to ``lines``, drawn all at once."""
         fig = self._fig
         if fig is None:
             fig = self._fig = self._lay_out(self.text)
         at, st, mark_lines, head = fig
         painter.drawStaticText(at, st)
         lines.extend(mark_lines)
-        if head is not None:
-            heads.addPolygon(head)
+        if head is not None:  # one polygon each: a path of all heads spans the drawing and fills slower
+            painter.drawPolygon(head)
 
     def _beside_body(self) -> QRectF:
         """What the mark draws at the part's body, apart from its text (none here)."""
@@ -395,20 +395,17 @@ class ReadingLayer(QGraphicsItem):
         painter.setFont(small_font())
         for marks, colour in zip(self._marks, (th.current, th.drop)):
             painter.setPen(_pen(colour, 1.4))
+            painter.setBrush(colour)
             lines: list[QLineF] = []
-            heads = QPainterPath()
             for mark in marks.values():
                 if not mark._visible:
                     continue
                 ml, mt, mr, mb = mark._scene_box
                 if mr < left or ml > right or mb < top or mt > bottom:
                     continue
-                mark.draw(painter, lines, heads)
+                mark.draw(painter, lines)
             if lines:
                 painter.drawLines(lines)
-            if not heads.isEmpty():
-                painter.setBrush(colour)
-                painter.drawPath(heads)
 
 
 class PotentialTag(QGraphicsItem):
