@@ -24,6 +24,12 @@ BRANCH = 4  # the column naming the part's current by its branch (tag or automat
 EFFECT = 5  # the column of the meters' effect
 
 
+_DISPLAY = int(Qt.ItemDataRole.DisplayRole.value)
+_ALIGN = int(Qt.ItemDataRole.TextAlignmentRole.value)
+_TIP = int(Qt.ItemDataRole.ToolTipRole.value)
+_RIGHT = int((Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter).value)
+
+
 def natural_key(name: str) -> tuple:
     """Sort key putting R2 before R10."""
     return tuple(int(t) if t.isdigit() else t for t in re.split(r"(\d+)", name))
@@ -107,20 +113,24 @@ class ReadingsModel(QAbstractTableModel):
         return format_value(r[column - 1], _UNITS[column])
 
     def data(self, index: QModelIndex | QPersistentModelIndex, role: int = Qt.ItemDataRole.DisplayRole):
+        # asked for every visible cell and role on each repaint: compare plain ints, not Qt enums
         if not index.isValid():
             return None
-        if role == Qt.ItemDataRole.DisplayRole:
+        if role == _DISPLAY:
             return self.text(index.row(), index.column())
-        if role == Qt.ItemDataRole.TextAlignmentRole and index.column() > 0:
-            return int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
-        if role == Qt.ItemDataRole.ToolTipRole and index.column() == 1:
+        column = index.column()
+        if role == _ALIGN:
+            return _RIGHT if column > 0 else None
+        if role != _TIP:
+            return None
+        if column == 1:
             return "Current through the part from its first terminal to its second"
-        if role == Qt.ItemDataRole.ToolTipRole and index.column() == 3:
+        if column == 3:
             return "Power absorbed; negative means the part delivers power"
-        if role == Qt.ItemDataRole.ToolTipRole and index.column() == BRANCH:
+        if column == BRANCH:
             return ("The part's current by the name of its branch current (your tag, or an automatic "
                     "name): −Ia means the part's first-to-second current runs against Ia")
-        if role == Qt.ItemDataRole.ToolTipRole and index.column() == EFFECT:
+        if column == EFFECT:
             full = self.effects.get(self.names[index.row()], ("", ""))[1]
             return full or ("For a meter: its reading against an ideal meter's. For another part: how much the "
                     "meters change its current from the unmetered circuit")
