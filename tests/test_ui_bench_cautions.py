@@ -121,6 +121,23 @@ def test_picking_a_caution_selects_its_part(qtbot, tmp_path):
     assert win.bench.marks.badge_text("F1") == "OVER +500 mA (20 %)"
 
 
+def test_the_cautions_list_keeps_its_place_while_edits_leave_it_unchanged(qtbot, tmp_path):
+    s = supply_with_a_gap()
+    s.add_part(PlacedPart("fuse", "F1", 0, 0, 0, False, {"rating": 2.5}))
+    win = open_window(qtbot, tmp_path, s)
+    lst = win.bench.panel.list
+    row = next(i for i in range(lst.count()) if "F1 carries" in lst.item(i).text())
+    lst.setCurrentRow(row)
+    # R3 sits straight across the ideal cell: 24 -> 30 ohm changes the cell's current, not the fuse's
+    win.editor.set_values("R3", {"resistance": 30.0})
+    qtbot.waitUntil(lambda: not win.solver.busy)
+    assert lst.currentRow() == row and "F1 carries" in lst.currentItem().text()
+    # R1 6 -> 3 ohm: 4 A + 1 A through the fuse (Ohm's law), a new text, so the list is filled again
+    win.editor.set_values("R1", {"resistance": 3.0})
+    qtbot.waitUntil(lambda: not win.solver.busy)
+    assert any("F1 carries 5.00 A" in lst.item(i).text() for i in range(lst.count()))
+
+
 def test_a_voltmeter_shows_its_loaded_reading_and_its_effect(qtbot, tmp_path):
     s = divider()
     s.add_part(PlacedPart("voltmeter", "PV1", 8, 0, 90, False, {"input_resistance": 1000.0}))

@@ -58,6 +58,7 @@ class CautionsPanel(QWidget):
         self.disclaimer.setObjectName("disclaimer")
         self.disclaimer.setStyleSheet("QLabel#disclaimer { font-style: italic; }")
         lay.addWidget(self.disclaimer)
+        self._entries: list = []  # what the list shows, to leave it alone when a solve changes nothing
         self.list = QListWidget()
         self.list.setWordWrap(True)
         self.list.setAlternatingRowColors(True)
@@ -78,9 +79,14 @@ class CautionsPanel(QWidget):
         self._fill()
 
     def _fill(self) -> None:
+        shown = [c for c in self.cautions if c.severity != "info" or self.show_notes.isChecked()]
+        entries = [current_theme().name]  # the icons are drawn in the scheme's colours
+        entries += [(c.severity, c.message, tuple(c.parts)) for c in shown] or [self._problem, self.cautions == []]
+        if entries == self._entries:
+            return  # the same list: keep the person's selection and scroll place, and skip a repaint
+        self._entries = entries
         self.list.blockSignals(True)
         self.list.clear()
-        shown = [c for c in self.cautions if c.severity != "info" or self.show_notes.isChecked()]
         for c in shown:
             item = QListWidgetItem(_icon(c.severity), f"{SEVERITY_WORDS.get(c.severity, c.severity)}: {c.message}")
             item.setData(Qt.ItemDataRole.UserRole, list(c.parts))
