@@ -98,8 +98,12 @@ def main(argv: list[str]) -> int:
     args = parser.parse_args(argv)
     sizes = [c for c in ((20, 60), (200, 40), (2000, 20)) if c[0] in args.parts]
     app = QApplication.instance() or QApplication(sys.argv[:1])
-    settings = QSettings(os.path.join(os.environ.get("TMPDIR", "/tmp"), "loopwright-bench.ini"),
-                         QSettings.Format.IniFormat)
+    # settings of its own, emptied first: every run measures the window as a first start lays it out
+    # (a window closed by an earlier run would otherwise bring back its docks and size)
+    ini = os.path.join(os.environ.get("TMPDIR", "/tmp"), "loopwright-bench.ini")
+    if os.path.exists(ini):
+        os.remove(ini)
+    settings = QSettings(ini, QSettings.Format.IniFormat)
     print(f"{'parts':>6} {'view':<12} {'edit':<14} {'handled: median':>15} {'p95':>6}   "
           f"{'updated: median':>15} {'p95':>6} {'paints':>6}  target (updated p95)")
     for (n, reps), zoom in [(c, z) for c in sizes for z in ("100 %", "whole sketch")]:
