@@ -8,10 +8,9 @@ from __future__ import annotations
 
 import networkx as nx
 import numpy as np
-from scipy.sparse import coo_matrix, csgraph
 
 from .errors import CurrentSourceCutError, IdealCellLoopError, ShortedCellError
-from .graph import Topology
+from .graph import Topology, components
 
 __all__ = ["check_ideal_cells", "check_current_sources"]
 
@@ -76,8 +75,7 @@ def check_ideal_cells(topo: Topology) -> None:
     # A cycle among ideal cells: more edges than a forest can hold.
     nodes, inv = np.unique(np.concatenate([u, v]), return_inverse=True)
     n = len(nodes)
-    adj = coo_matrix((np.ones(len(ideal)), (inv[: len(ideal)], inv[len(ideal):])), shape=(n, n))
-    k, _ = csgraph.connected_components(adj, directed=False)
+    k = len(components(n, inv[: len(ideal)], inv[len(ideal):])[1])
     if len(ideal) <= n - k:
         return
     g = nx.MultiGraph()
@@ -117,10 +115,8 @@ def check_current_sources(topo: Topology) -> None:
     cs = np.flatnonzero(topo.br_cs)
     if len(cs) == 0:
         return
-    n = topo.n_nodes
     other = np.flatnonzero(~topo.br_cs)
-    adj = coo_matrix((np.ones(len(other)), (topo.br_u[other], topo.br_v[other])), shape=(n, n))
-    _, group = csgraph.connected_components(adj, directed=False)
+    group, _ = components(topo.n_nodes, topo.br_u[other], topo.br_v[other])
     gu, gv = group[topo.br_u[cs]], group[topo.br_v[cs]]
     cut = gu != gv
     if not cut.any():

@@ -1,21 +1,43 @@
 """Topology of a circuit as arrays: wires merged into nodes, branches between nodes.
 
 The hot path works on numpy arrays and scipy.sparse.csgraph (components and
-breadth-first trees run in C); :func:`multigraph` gives the same topology as a
-networkx MultiGraph for reading and display, built only when asked for.
+breadth-first trees run in C). Their adjacency matrices are built straight
+from sorted index arrays (:func:`adjacency`): on sketch-sized circuits
+scipy's own COO conversion and checks cost more than the graph algorithms
+themselves. :func:`multigraph` gives the same topology as a networkx
+MultiGraph for reading and display, built only when asked for.
 """
 from __future__ import annotations
 
 from dataclasses import dataclass
+from functools import cached_property
 
 import networkx as nx
 import numpy as np
-from scipy.sparse import coo_matrix, csgraph
+from scipy.sparse import csgraph, csr_matrix
 
 from .circuit import CELL, CURRENT_SOURCE, Circuit
 
-__all__ = ["Topology", "contract", "Forest", "bfs_forest", "spanning_forest", "least_resistance_forest", "component_roots",
-           "accumulate_to_root", "subtree_sums", "multigraph"]
+__all__ = ["Topology", "contract", "Forest", "adjacency", "components", "bfs_forest", "spanning_forest",
+           "least_resistance_forest", "component_roots", "accumulate_to_root", "subtree_sums", "multigraph"]
+
+
+@dataclass
+class Forest:
+    """A breadth-first spanning forest over ``n`` vertices.
+
+    ``parent[x]`` is the parent of ``x`` (roots are their own parent),
+    ``edge[x]`` the index (into the edge list given) of the tree edge from
+    ``x`` to its parent (-1 at roots), ``depth[x]`` its distance from the root.
+    """
+
+    parent: np.ndarray
+    edge: np.ndarray
+
+    @cached_property
+    def depth(self) -> np.ndarray:
+        """Distance of each vertex from its root; worked out when first asked for, as most forests never need it."""
+        return accumulate_to_root(self, np.ones(len(self.parent), dtype=np.int64))
 
 
 @dataclass
@@ -25,7 +47,9 @@ class Topology:
     Points are indexed in ``point_names`` order, parts in circuit order.
     ``node_of_point[p]`` is the node of point ``p``; a node is named after its
     first point. ``br_*`` arrays describe the branches (resistors, cells and
-    current sources), ``cd_*`` the conductors (wires and closed switches).
+    current sources). The conductors (wires and closed switches) have a
+    spanning forest over the points, rooted at each node's first point; the
+    islands are the connected pieces of the nodes joined by branches.
     """
 
     circuit: Circuit
@@ -45,6 +69,9 @@ class Topology:
     br_j: np.ndarray            # set current (current sources), amperes
     br_cs: np.ndarray           # bool: current source
     conductor_parts: np.ndarray  # part index of each wire / closed switch
+    conductor_forest: Forest     # over points; Forest.edge indexes conductor_parts
+    island: np.ndarray           # island of each node, numbered in order of its lowest node
+    island_first: np.ndarray     # lowest node of each island
 
     @property
     def n_points(self) -> int:
@@ -62,8 +89,8 @@ class Topology:
 def contract(circuit: Circuit) -> Topology:
     """Merge the points joined by wires and closed switches into nodes.
 
-    Union-find is done by ``scipy.sparse.csgraph.connected_components`` on the
-    conductor graph, so it runs in C.
+    Union-find is done by :func:`components` on the conductor graph, so it
+    runs in C; the islands are the components of the nodes joined by branches.
     """
     parts = circuit.parts
     point_index: dict[str, int] = {}
@@ -80,21 +107,18 @@ def contract(circuit: Circuit) -> Topology:
     branch = np.array([p.is_branch for p in parts], dtype=bool)
 
     cd = np.flatnonzero(conductor)
-    adj = coo_matrix((np.ones(len(cd)), (pa[cd], pb[cd])), shape=(n, n))
-    _, label = csgraph.connected_components(adj, directed=False)
-    # Renumber nodes in order of their first point, so names are stable.
-    _, first, inverse = np.unique(label, return_index=True, return_inverse=True)
-    order = np.argsort(first)
-    rank = np.empty_like(order)
-    rank[order] = np.arange(len(order))
-    node_of_point = rank[inverse.ravel()]
-    node_names = [point_names[i] for i in np.sort(first)]
+    # Nodes are numbered in order of their first point, so names are stable.
+    node_of_point, first_point = components(n, pa[cd], pb[cd])
+    node_names = [point_names[i] for i in first_point]
 
     bi = np.flatnonzero(branch)
-    br_r = np.array([parts[i].resistance for i in bi], dtype=float)
-    br_e = np.array([parts[i].emf if kinds[i] == CELL else 0.0 for i in bi], dtype=float)
-    br_j = np.array([parts[i].current if kinds[i] == CURRENT_SOURCE else 0.0 for i in bi], dtype=float)
-    br_cs = np.array([kinds[i] == CURRENT_SOURCE for i in bi], dtype=bool)
+    br_u, br_v = node_of_point[pa[bi]], node_of_point[pb[bi]]
+    branches = [parts[i] for i in bi.tolist()]
+    br_r = np.array([p.resistance for p in branches], dtype=float)
+    br_e = np.array([p.emf if p.kind == CELL else 0.0 for p in branches], dtype=float)
+    br_j = np.array([p.current if p.kind == CURRENT_SOURCE else 0.0 for p in branches], dtype=float)
+    br_cs = np.array([p.kind == CURRENT_SOURCE for p in branches], dtype=bool)
+    island, island_first = components(len(first_point), br_u, br_v)
     return Topology(
         circuit=circuit,
         part_names=[p.name for p in parts],
@@ -106,89 +130,101 @@ def contract(circuit: Circuit) -> Topology:
         node_of_point=node_of_point,
         node_names=node_names,
         branch_parts=bi,
-        br_u=node_of_point[pa[bi]] if len(bi) else np.zeros(0, np.int64),
-        br_v=node_of_point[pb[bi]] if len(bi) else np.zeros(0, np.int64),
+        br_u=br_u,
+        br_v=br_v,
         br_r=br_r,
         br_e=br_e,
         br_j=br_j,
         br_cs=br_cs,
         conductor_parts=cd,
+        conductor_forest=bfs_forest(n, pa[cd], pb[cd], first_point),
+        island=island,
+        island_first=island_first,
     )
 
 
-@dataclass
-class Forest:
-    """A breadth-first spanning forest over ``n`` vertices.
+def adjacency(n: int, u: np.ndarray, v: np.ndarray) -> csr_matrix:
+    """The graph with edges ``u[k]–v[k]`` on ``n`` vertices as a symmetric CSR adjacency.
 
-    ``parent[x]`` is the parent of ``x`` (roots are their own parent),
-    ``edge[x]`` the index (into the edge list given) of the tree edge from
-    ``x`` to its parent (-1 at roots), ``depth[x]`` its distance from the root.
+    In scipy's canonical form (each row's neighbours ascending, each once), as
+    scipy would build it from COO, so traversals visit neighbours in the same
+    order; built from the sorted keys directly (int32 indices, as csgraph
+    uses), it skips scipy's conversion and checks. Parallel edges are one
+    entry: csgraph's strong component search mislabels or never ends on
+    repeated entries. Self-loops stay; no traversal takes them.
     """
+    key = np.concatenate([u * np.int64(n) + v, v * np.int64(n) + u])
+    key = np.sort(key, kind="stable")
+    distinct = np.ones(len(key), bool)
+    distinct[1:] = key[1:] != key[:-1]
+    rows, cols = np.divmod(key[distinct], max(n, 1))
+    indptr = np.zeros(n + 1, dtype=np.int32)
+    np.cumsum(np.bincount(rows, minlength=n), out=indptr[1:])
+    return csr_matrix((np.ones(len(rows)), cols.astype(np.int32), indptr), shape=(n, n))
 
-    parent: np.ndarray
-    edge: np.ndarray
-    depth: np.ndarray
+
+def components(n: int, u: np.ndarray, v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Connected components of the graph with edges ``u[k]–v[k]``, numbered in order of their lowest vertex.
+
+    Returns (label of each vertex, lowest vertex of each component). On the
+    symmetric :func:`adjacency` the strongly connected components are the
+    connected ones; csgraph's strong search (Pearce's algorithm) works on the
+    matrix as given, where its undirected search would first build the
+    transpose.
+    """
+    if len(u) == 0:   # no edges: each vertex alone
+        return np.arange(n), np.arange(n)
+    k, label = csgraph.connected_components(adjacency(n, u, v), directed=True, connection="strong")
+    lowest = np.full(k, n, dtype=np.int64)
+    np.minimum.at(lowest, label, np.arange(n))
+    order = np.argsort(lowest)
+    rank = np.empty(k, dtype=np.int64)
+    rank[order] = np.arange(k)
+    return rank[label], lowest[order]
 
 
 def bfs_forest(n: int, u: np.ndarray, v: np.ndarray, roots: np.ndarray,
                prefer: np.ndarray | None = None) -> Forest:
     """Breadth-first spanning forest of the multigraph with edges ``u[k]–v[k]``.
 
-    Each connected component is rooted at the vertex of ``roots`` that lies in
-    it (``roots`` must hold exactly one vertex per component, e.g. from
-    :func:`component_roots`). A virtual super-root joined to every root lets
-    one C-level ``csgraph.breadth_first_order`` call span all components.
-    Self-loops are allowed and never become tree edges; of parallel edges the
-    one with the smallest ``prefer`` value (e.g. resistance) is taken.
+    Each connected component is rooted at the vertex of ``roots`` that lies
+    in it (``roots`` must hold exactly one vertex per component, e.g. from
+    :func:`component_roots`). A virtual super-root joined to every root (the
+    last vertex of the adjacency, so each root meets it after its own
+    neighbours) lets one C-level ``csgraph.breadth_first_order`` call span
+    all components. Self-loops never become tree edges; of parallel edges
+    the one with the smallest ``prefer`` value (e.g. resistance) is taken.
     """
-    m = len(u)
+    if len(u) == 0:   # no edges: each vertex is a root of its own
+        return Forest(parent=np.arange(n), edge=np.full(n, -1, dtype=np.int64))
     s = n  # super-root
-    rows = np.concatenate([u, v, np.full(len(roots), s)])
-    cols = np.concatenate([v, u, roots])
-    keep = rows != cols
-    adj = coo_matrix((np.ones(int(keep.sum())), (rows[keep], cols[keep])), shape=(n + 1, n + 1)).tocsr()
-    _, pred = csgraph.breadth_first_order(adj, s, directed=True, return_predecessors=True)
+    full = adjacency(n + 1, np.concatenate([u, np.full(len(roots), s)]), np.concatenate([v, roots]))
+    _, pred = csgraph.breadth_first_order(full, s, directed=True, return_predecessors=True)
     parent = pred[:n].copy()
     is_root = (parent == s) | (parent < 0)
     parent[is_root] = np.flatnonzero(is_root)
 
-    # The tree edge of x: any edge joining x and parent[x]; look it up by pair key.
+    # The tree edge of x: the first (by ``prefer``, then index) edge joining x and parent[x].
+    key = np.minimum(u, v) * (n + 1) + np.maximum(u, v)
+    by = np.lexsort((prefer, key)) if prefer is not None else np.argsort(key, kind="stable")
+    x = np.flatnonzero(~is_root)
+    px = parent[x]
+    want = np.minimum(x, px) * (n + 1) + np.maximum(x, px)
     edge = np.full(n, -1, dtype=np.int64)
-    if m:
-        lo, hi = np.minimum(u, v), np.maximum(u, v)
-        key = lo * (n + 1) + hi
-        if prefer is not None:
-            by = np.lexsort((prefer, key))
-            skey, f0 = np.unique(key[by], return_index=True)
-            first = by[f0]
-        else:
-            skey, first = np.unique(key, return_index=True)
-        x = np.flatnonzero(~is_root)
-        px = parent[x]
-        want = np.minimum(x, px) * (n + 1) + np.maximum(x, px)
-        pos = np.searchsorted(skey, want)
-        edge[x] = first[pos]
-
-    forest = Forest(parent=parent, edge=edge, depth=np.zeros(n, np.int64))
-    forest.depth = accumulate_to_root(forest, np.ones(n, dtype=np.int64))
-    return forest
+    edge[x] = by[np.searchsorted(key[by], want)]
+    return Forest(parent=parent, edge=edge)
 
 
-def component_roots(n: int, u: np.ndarray, v: np.ndarray, preferred: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Components of the graph and one root per component.
+def component_roots(label: np.ndarray, lowest: np.ndarray, preferred: np.ndarray) -> np.ndarray:
+    """One root per component (``label``, ``lowest`` from :func:`components`).
 
-    The root of a component is the first vertex of ``preferred`` (in its order)
-    that lies in it, else its lowest-numbered vertex. Returns (labels, roots).
+    The root of a component is the first vertex of ``preferred`` (in its
+    order) that lies in it, else its lowest-numbered vertex.
     """
-    adj = coo_matrix((np.ones(len(u)), (u, v)), shape=(n, n))
-    k, label = csgraph.connected_components(adj, directed=False)
-    root = np.full(k, -1, dtype=np.int64)
+    root = lowest.copy()
     pref = preferred[::-1]  # later writes win, so reverse to let the first preferred win
     root[label[pref]] = pref
-    lowest = np.full(k, n, dtype=np.int64)
-    np.minimum.at(lowest, label, np.arange(n))
-    root = np.where(root < 0, lowest, root)
-    return label, root
+    return root
 
 
 def accumulate_to_root(forest: Forest, step: np.ndarray) -> np.ndarray:
@@ -239,11 +275,14 @@ def spanning_forest(n: int, u: np.ndarray, v: np.ndarray, weight: np.ndarray, ro
         return bfs_forest(n, u[:0], v[:0], roots)
     first = np.r_[True, (lo[1:] != lo[:-1]) | (hi[1:] != hi[:-1])]
     lo, hi, idx = lo[first], hi[first], idx[first]
-    mst = csgraph.minimum_spanning_tree(coo_matrix((weight[idx], (lo, hi)), shape=(n, n))).tocoo()
-    key = lo * n + hi
-    tkey = np.minimum(mst.row, mst.col).astype(np.int64) * n + np.maximum(mst.row, mst.col)
-    sk = np.argsort(key)
-    tree = idx[sk[np.searchsorted(key[sk], tkey)]]
+    # The candidates, one per vertex pair in row-major order, are the upper triangle in canonical CSR.
+    indptr = np.zeros(n + 1, dtype=np.int32)
+    np.cumsum(np.bincount(lo, minlength=n), out=indptr[1:])
+    candidates = csr_matrix((weight[idx], hi.astype(np.int32), indptr), shape=(n, n))
+    mst = csgraph.minimum_spanning_tree(candidates, overwrite=True)
+    t_row = np.repeat(np.arange(n), np.diff(mst.indptr))
+    tkey = np.minimum(t_row, mst.indices) * n + np.maximum(t_row, mst.indices)
+    tree = idx[np.searchsorted(lo * n + hi, tkey)]   # lo * n + hi is ascending
     f = bfs_forest(n, u[tree], v[tree], roots)
     f.edge = np.where(f.edge >= 0, tree[np.maximum(f.edge, 0)], -1)
     return f

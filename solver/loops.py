@@ -25,10 +25,10 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.sparse import coo_matrix, csgraph, csr_matrix
+from scipy.sparse import csr_matrix
 from scipy.sparse import vstack as sp_vstack
 
-from .graph import Forest, Topology, bfs_forest, component_roots, spanning_forest
+from .graph import Forest, Topology, bfs_forest, components, spanning_forest
 
 __all__ = ["LoopSet", "window_loops", "fundamental_loops", "orient_clockwise", "crossing_mask"]
 
@@ -58,8 +58,9 @@ class LoopSet:
         """Reverse the direction of the loops in ``mask`` (their order and signs)."""
         if not mask.any():
             return
-        flip_rows = np.where(mask, -1.0, 1.0)
-        self.B = csr_matrix(self.B.multiply(flip_rows[:, None]))
+        B = self.B
+        flip_entries = np.repeat(np.where(mask, -1.0, 1.0), np.diff(B.indptr))
+        self.B = csr_matrix((B.data * flip_entries, B.indices, B.indptr), shape=B.shape)
         sel = mask[self.loop]
         self.sign = np.where(sel, -self.sign, self.sign)
         # reverse traversal order inside flipped loops
@@ -72,10 +73,7 @@ class LoopSet:
 
 def cycle_space_dimension(topo: Topology) -> int:
     """Number of independent loops: branches − nodes + components (Kirchhoff)."""
-    n = topo.n_nodes
-    adj = coo_matrix((np.ones(topo.n_branches), (topo.br_u, topo.br_v)), shape=(n, n))
-    k, _ = csgraph.connected_components(adj, directed=False)
-    return topo.n_branches - n + k
+    return topo.n_branches - topo.n_nodes + len(topo.island_first)
 
 
 def _orient(ax, ay, bx, by, cx, cy):
@@ -106,20 +104,28 @@ def _grid_crossings(p: np.ndarray, q: np.ndarray) -> np.ndarray | None:
     lo = np.minimum(pi.min(axis=0), qi.min(axis=0))
     span = int((np.maximum(pi, qi) - lo).max()) + 1
     key_of = lambda xy: (xy[:, 0] - lo[0]) * span + (xy[:, 1] - lo[1])  # noqa: E731
+    step = np.sign(d).astype(np.int64)
     seg = np.repeat(np.arange(n), inner)
     k = 1 + np.arange(total) - np.repeat(np.cumsum(inner) - inner, inner)
-    step = np.sign(d).astype(np.int64)
-    inner_keys = key_of(pi[seg] + step[seg] * k[:, None])
+    p_key = key_of(pi)
+    inner_keys = p_key[seg] + (step[:, 0] * span + step[:, 1])[seg] * k   # key of p + k·step
     mask = np.zeros(n, bool)
     if total == 0:
         return mask
-    uniq, inv, cnt = np.unique(inner_keys, return_inverse=True, return_counts=True)
-    mask[seg[cnt[inv] > 1]] = True
-    end_keys = np.concatenate([key_of(pi), key_of(qi)])
-    hit = np.isin(inner_keys, end_keys)
-    mask[seg[hit]] = True
-    end_hit = np.isin(end_keys, inner_keys)
-    mask[np.concatenate([np.arange(n), np.arange(n)])[end_hit]] = True
+    # All points, inner ones first, grouped by key in one sort: an inner point is in a crossing
+    # when its key occurs again (inner or end), an end when its key occurs as an inner point.
+    keys = np.concatenate([inner_keys, p_key, key_of(qi)])
+    owner = np.concatenate([seg, np.arange(n), np.arange(n)])
+    order = np.argsort(keys)
+    sk = keys[order]
+    start = np.ones(len(sk), bool)
+    start[1:] = sk[1:] != sk[:-1]
+    group = np.cumsum(start) - 1
+    inner_first = order < total
+    n_inner = np.bincount(group, weights=inner_first)
+    n_all = np.bincount(group)
+    hit = np.where(inner_first, n_all[group] > 1, n_inner[group] > 0)
+    mask[owner[order[hit]]] = True
     return mask
 
 
@@ -214,13 +220,14 @@ def window_loops(topo: Topology) -> LoopSet | None:
     nb = topo.n_branches
     geo = np.concatenate([topo.branch_parts, topo.conductor_parts])
     pa, pb = topo.part_a[geo], topo.part_b[geo]
-    used = np.unique(np.concatenate([pa, pb]))
+    used = _used_points(topo.n_points, pa, pb)
     names = topo.point_names
     if any(names[i] not in pos for i in used):
         return None
     xy = np.full((topo.n_points, 2), np.nan)
     xy[used] = [pos[names[i]] for i in used]
-    if len(np.unique(xy[used], axis=0)) != len(used):
+    at = xy[used][np.lexsort((xy[used, 1], xy[used, 0]))]
+    if np.any(np.all(at[1:] == at[:-1], axis=1)):   # two points at one position
         return None
     crossing = crossing_mask(xy[pa], xy[pb], pa, pb)
     lifted = np.zeros(len(geo), bool)
@@ -235,9 +242,11 @@ def window_loops(topo: Topology) -> LoopSet | None:
     # spanning forest of the drawn conductors and lift the ring closers too
     # (their ends are joined anyway, so they close no loop of their own).
     dc = np.flatnonzero(~lifted[nb:])
-    ca, cb = pa[nb + dc], pb[nb + dc]
-    _, croots = component_roots(topo.n_points, ca, cb, np.zeros(0, np.int64))
-    cforest = bfs_forest(topo.n_points, ca, cb, croots)
+    if len(dc) == len(topo.conductor_parts):
+        cforest = topo.conductor_forest   # the same forest: over all conductors, from each node's lowest point
+    else:
+        ca, cb = pa[nb + dc], pb[nb + dc]
+        cforest = bfs_forest(topo.n_points, ca, cb, components(topo.n_points, ca, cb)[1])
     ring = np.ones(len(dc), bool)
     ring[cforest.edge[cforest.edge >= 0]] = False
     lifted[nb + dc[ring]] = True
@@ -255,6 +264,14 @@ def window_loops(topo: Topology) -> LoopSet | None:
     return loops
 
 
+def _used_points(n: int, pa: np.ndarray, pb: np.ndarray) -> np.ndarray:
+    """The points (ascending) that are an end of some segment ``pa[k]–pb[k]``."""
+    used = np.zeros(n, bool)
+    used[pa] = True
+    used[pb] = True
+    return np.flatnonzero(used)
+
+
 def _faces(topo: Topology, xy: np.ndarray, pa: np.ndarray, pb: np.ndarray, branch_of: np.ndarray) -> LoopSet | None:
     """Bounded faces of a crossing-free straight-line drawing as clockwise loops.
 
@@ -265,7 +282,7 @@ def _faces(topo: Topology, xy: np.ndarray, pa: np.ndarray, pb: np.ndarray, branc
     """
     nb = topo.n_branches
     m = len(pa)
-    used = np.unique(np.concatenate([pa, pb]))
+    used = _used_points(topo.n_points, pa, pb)
     origin = np.empty(2 * m, np.int64)
     origin[0::2], origin[1::2] = pa, pb          # half-edge 2e runs a->b, 2e+1 runs b->a
     dest = np.empty(2 * m, np.int64)
@@ -282,8 +299,9 @@ def _faces(topo: Topology, xy: np.ndarray, pa: np.ndarray, pb: np.ndarray, branc
     rt = rank[np.arange(2 * m) ^ 1]
     start_t, deg_t = first[rt], deg[rt]
     nxt = order[start_t + (rt - start_t - 1) % deg_t]
-    ncomp, face = csgraph.connected_components(
-        coo_matrix((np.ones(2 * m), (np.arange(2 * m), nxt)), shape=(2 * m, 2 * m)), connection="weak")
+    # faces are the cycles of the permutation nxt, each numbered in order of its lowest half-edge
+    face, lowest = components(2 * m, np.arange(2 * m), nxt)
+    ncomp = len(lowest)
     cross = xy[origin, 0] * xy[dest, 1] - xy[dest, 0] * xy[origin, 1]
     area = np.bincount(face, weights=cross, minlength=ncomp) / 2.0
     scale = np.bincount(face, weights=np.abs(cross), minlength=ncomp) + 1e-300
@@ -292,8 +310,7 @@ def _faces(topo: Topology, xy: np.ndarray, pa: np.ndarray, pb: np.ndarray, branc
     # Euler's formula over the drawn segments' own components.
     remap = np.full(topo.n_points, -1, np.int64)
     remap[used] = np.arange(len(used))
-    gadj = coo_matrix((np.ones(m), (remap[pa], remap[pb])), shape=(len(used), len(used)))
-    gk, _ = csgraph.connected_components(gadj, directed=False)
+    gk = len(components(len(used), remap[pa], remap[pb])[1])
     if int(bounded.sum()) != m - len(used) + gk:
         return None
 
@@ -306,7 +323,7 @@ def _faces(topo: Topology, xy: np.ndarray, pa: np.ndarray, pb: np.ndarray, branc
     sel = bounded[face] & is_branch
     rows = face_row[face[sel]]
     sg = np.where(np.arange(2 * m)[sel] & 1, -1, 1)
-    step = _cycle_positions(nxt, face, ncomp)[sel]
+    step = _cycle_positions(nxt, face, lowest)[sel]
     return _from_entries("windows", rows, br[sel], sg, step, len(fb), nb, clockwise=1)
 
 
@@ -332,8 +349,33 @@ def _isolate_shorted(ls: LoopSet, topo: Topology) -> LoopSet:
         return ls
     keep = ~drop
     loop, branch, sign = ls.loop[keep], ls.branch[keep], ls.sign[keep]
-    B = csr_matrix(coo_matrix((sign.astype(float), (loop, branch)), shape=ls.B.shape))
+    B, _ = _incidence(loop, branch, sign, ls.n_loops, topo.n_branches)
     return LoopSet(ls.method, B, loop, branch, sign, ls.clockwise)
+
+
+def _incidence(loop: np.ndarray, branch: np.ndarray, sign: np.ndarray, n_loops: int,
+               nb: int) -> tuple[csr_matrix, np.ndarray]:
+    """The loop-branch incidence matrix of (loop, branch, sign) entries, and which entries it keeps.
+
+    Entries for the same loop and branch are summed and zero sums dropped, so
+    the matrix is in canonical CSR form (each row's columns ascending), as
+    scipy would make it from COO; an entry is kept when its sum is not zero.
+    """
+    key = loop * nb + branch
+    order = np.argsort(key, kind="stable")
+    skey = key[order]
+    new = np.ones(len(skey), bool)
+    new[1:] = skey[1:] != skey[:-1]
+    group = np.cumsum(new) - 1
+    total = np.bincount(group, weights=sign[order], minlength=int(new.sum()))
+    kept = np.empty(len(key), bool)
+    kept[order] = total[group] != 0
+    nonzero = total != 0
+    rows, cols = np.divmod(skey[new][nonzero], max(nb, 1))
+    indptr = np.zeros(n_loops + 1, dtype=np.int32)
+    np.cumsum(np.bincount(rows, minlength=n_loops), out=indptr[1:])
+    B = csr_matrix((total[nonzero], cols.astype(np.int32), indptr), shape=(n_loops, nb))
+    return B, kept
 
 
 def _from_entries(method: str, loop: np.ndarray, branch: np.ndarray, sign: np.ndarray,
@@ -343,23 +385,22 @@ def _from_entries(method: str, loop: np.ndarray, branch: np.ndarray, sign: np.nd
     A branch walked both ways in one loop (a dangling branch inside a window)
     cancels; a loop with no branch left (only wires) is dropped.
     """
-    B = coo_matrix((sign.astype(float), (loop, branch)), shape=(n_loops, nb)).tocsr()
-    B.sum_duplicates()
-    B.eliminate_zeros()
+    B, kept = _incidence(loop, branch, sign, n_loops, nb)
     nonempty = np.diff(B.indptr) > 0
     new_id = np.cumsum(nonempty) - 1
-    if len(loop):
-        keep = nonempty[loop] & (np.asarray(B[loop, branch]).ravel() != 0)
-    else:
-        keep = np.zeros(0, bool)
+    keep = kept & nonempty[loop]
     loop, branch, sign, step = new_id[loop[keep]], branch[keep], sign[keep], step[keep]
     order = np.lexsort((step, loop))
     loop, branch, sign = loop[order], branch[order], sign[order]
+    # a branch met twice the same way: keep its first entry
     key = loop * (nb + 1) + branch
-    _, firstk = np.unique(key, return_index=True)   # a branch met twice the same way: keep one
-    firstk.sort()
-    B = B[nonempty]
-    return LoopSet(method, csr_matrix(B), loop[firstk], branch[firstk], sign[firstk],
+    by = np.argsort(key, kind="stable")
+    first = np.ones(len(key), bool)
+    first[1:] = key[by][1:] != key[by][:-1]
+    firstk = np.sort(by[first])
+    if not nonempty.all():
+        B = B[nonempty]
+    return LoopSet(method, B, loop[firstk], branch[firstk], sign[firstk],
                    np.full(B.shape[0], clockwise, np.int64))
 
 
@@ -388,15 +429,14 @@ def _tie_loops(topo: Topology, ties: np.ndarray, drawn_conductors: np.ndarray, x
     """
     nb, npnt = topo.n_branches, topo.n_points
     ca, cb = topo.part_a[drawn_conductors], topo.part_b[drawn_conductors]
-    _, lab = csgraph.connected_components(coo_matrix((np.ones(len(ca)), (ca, cb)), shape=(npnt, npnt)),
-                                          directed=False)
-    nn = int(lab.max()) + 1
+    lab, lowest = components(npnt, ca, cb)
+    nn = len(lowest)
     pa_b = topo.part_a[topo.branch_parts]
     pb_b = topo.part_b[topo.branch_parts]
     eu = np.concatenate([lab[pa_b], lab[topo.part_a[ties]]])   # edges: branches, then ties
     ev = np.concatenate([lab[pb_b], lab[topo.part_b[ties]]])
     weight = np.r_[np.ones(nb), np.full(len(ties), 2.0)]
-    _, roots = component_roots(nn, eu, ev, np.zeros(0, np.int64))
+    _, roots = components(nn, eu, ev)
     forest = spanning_forest(nn, eu, ev, weight, roots)
     in_tree = np.zeros(len(eu), bool)
     in_tree[forest.edge[forest.edge >= 0]] = True
@@ -463,15 +503,15 @@ def _tree_paths(forest: Forest, tree_branch: np.ndarray, start: np.ndarray, end:
     return (np.concatenate(loops), np.concatenate(branches), np.concatenate(signs), np.concatenate(steps))
 
 
-def _cycle_positions(nxt: np.ndarray, face: np.ndarray, nfaces: int) -> np.ndarray:
+def _cycle_positions(nxt: np.ndarray, face: np.ndarray, start: np.ndarray) -> np.ndarray:
     """Position of each element along its cycle of the permutation ``nxt``.
 
-    Counted from the lowest-numbered element of the cycle, by pointer jumping
-    (O(n log n), no Python loop per element).
+    ``face`` numbers the cycles and ``start`` holds the lowest element of
+    each; positions are counted from it, by pointer jumping (O(n log n), no
+    Python loop per element).
     """
     n = len(nxt)
-    start = np.full(nfaces, n, np.int64)
-    np.minimum.at(start, face, np.arange(n))
+    nfaces = len(start)
     is_start = np.zeros(n, bool)
     is_start[start] = True
     dist = np.where(is_start, 0, 1).astype(np.int64)
@@ -507,7 +547,7 @@ def fundamental_loops(topo: Topology, forest: Forest, tree_branch: np.ndarray) -
     step = np.concatenate([np.zeros(L, np.int64), step])
     order = np.lexsort((step, loop))
     loop, branch, sign = loop[order], branch[order], sign[order]
-    B = csr_matrix(coo_matrix((sign.astype(float), (loop, branch)), shape=(L, nb)))
+    B, _ = _incidence(loop, branch, sign, L, nb)
     return LoopSet("fundamental", B, loop, branch, sign, np.zeros(L, np.int64))
 
 

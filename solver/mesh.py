@@ -82,19 +82,21 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
     n = topo.n_nodes
     ground_node = topo.node_of_point[topo.point_index[ground]] if ground is not None else -1
     preferred = _preferred_references(topo, ground_node)
-    label, roots = component_roots(n, topo.br_u, topo.br_v, preferred)
-    forest = bfs_forest(n, topo.br_u, topo.br_v, roots, prefer=topo.br_r)
+    label = topo.island
+    roots = component_roots(label, topo.island_first, preferred)
 
     # Windows when the drawing allows, else a shallow tree's loops; if either is
     # too ill-conditioned, the loops of a least-resistance tree. With resistances
     # spread over more than three decades the shallow tree is skipped: its loops may carry a
     # large resistance in several loops and lose digits without failing KVL.
+    # The potentials are walked along the same tree (see below).
     positive = topo.br_r[topo.br_r > 0]
     wide = len(positive) > 0 and positive.max() > WIDE_SPREAD * positive.min()
-    makers = [lambda: window_loops(topo)]
+    walk = least_resistance_forest(topo, roots) if wide else bfs_forest(n, topo.br_u, topo.br_v, roots,
+                                                                         prefer=topo.br_r)
+    makers = [lambda: window_loops(topo), lambda: fundamental_loops(topo, walk, walk.edge)]
     if not wide:
-        makers.append(lambda: fundamental_loops(topo, forest, forest.edge))
-    makers.append(lambda: _least_resistance_loops(topo, roots))
+        makers.append(lambda: _least_resistance_loops(topo, roots))
     failure: IllConditionedError | None = None
     for make in makers:
         loops = make()
@@ -115,7 +117,6 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
     # spread wide, a least-resistance tree, so no potential is carried through a
     # large resistance whose drop is only rounding noise (ideal cells and low
     # resistances fix potentials best).
-    walk = least_resistance_forest(topo, roots) if wide else forest
     k = walk.edge
     step = np.zeros(n)
     has = k >= 0
@@ -152,7 +153,8 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
 
 def _preferred_references(topo: Topology, ground_node: int) -> np.ndarray:
     """Reference candidates in order: ground, then each cell's minus terminal, then any node."""
-    cells = [k for k, pi in enumerate(topo.branch_parts) if topo.part_kind[pi] == "cell"]
+    kinds = topo.part_kind
+    cells = [k for k, pi in enumerate(topo.branch_parts.tolist()) if kinds[pi] == "cell"]
     pref = ([ground_node] if ground_node >= 0 else []) + [int(topo.br_v[k]) for k in cells]
     return np.array(pref, dtype=np.int64)
 
@@ -166,13 +168,25 @@ def _branch_solution(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.nda
     """Loop currents, branch currents and branch voltages, checked against KVL."""
     j, w = _solve_mesh(topo, loops)
     cs = np.flatnonzero(topo.br_cs)
-    i_br = loops.B.T @ j if loops.n_loops else np.zeros(topo.n_branches)
+    loop, branch, sign = _entries(loops.B)
+    i_br = np.bincount(branch, weights=sign * j[loop], minlength=topo.n_branches)   # Bᵀ·j
     i_br[cs] = topo.br_j[cs]
     v_br = topo.br_r * i_br + topo.br_e
     v_br[cs] = w
     size = np.abs(topo.br_r * i_br) + np.abs(topo.br_e) + np.abs(np.where(topo.br_cs, v_br, 0.0))
     _check_kvl(loops, j, v_br, size, topo)
     return j, i_br, v_br
+
+
+def _entries(B: sp.csr_matrix) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The loop, branch and value of each stored entry of ``B``, in storage order.
+
+    Products with Bᵀ or |B| summed over them with ``np.bincount`` add the
+    terms in the same order as scipy's sparse products, so they give the same
+    bits, without building Bᵀ or |B| (which costs more than the sums on
+    sketch-sized circuits).
+    """
+    return np.repeat(np.arange(B.shape[0]), np.diff(B.indptr)), B.indices, B.data
 
 
 def _solve_mesh(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.ndarray]:
@@ -261,11 +275,14 @@ def _check_kvl(loops: LoopSet, j: np.ndarray, v_br: np.ndarray, size: np.ndarray
     """
     if loops.n_loops == 0:
         return
+    L = loops.n_loops
+    loop, branch, sign = _entries(loops.B)
     res = np.abs(loops.B @ v_br)
-    absB = abs(loops.B)
-    through = absB.T @ np.abs(j)
-    equation = absB @ (topo.br_r * through) + float(size.max(initial=0.0))
-    scale = absB @ size
+    mag = np.abs(sign)   # the entries of |B|
+    through = np.bincount(branch, weights=mag * np.abs(j)[loop], minlength=topo.n_branches)   # |B|ᵀ·|j|
+    equation = np.bincount(loop, weights=mag * (topo.br_r * through)[branch], minlength=L) \
+        + float(size.max(initial=0.0))
+    scale = np.bincount(loop, weights=mag * size[branch], minlength=L)   # |B|·size
     allowed = KVL_TOLERANCE * scale + ROUNDING * equation
     worst = int(np.argmax(res - allowed))
     if res[worst] > allowed[worst]:
@@ -295,9 +312,8 @@ def _conductor_currents(topo: Topology, i_br: np.ndarray) -> np.ndarray:
     pb = topo.part_b[topo.branch_parts]
     np.add.at(inj, pa, -i_br)
     np.add.at(inj, pb, i_br)
-    ca, cb = topo.part_a[cd], topo.part_b[cd]
-    _, first = np.unique(topo.node_of_point, return_index=True)
-    forest = bfs_forest(npnt, ca, cb, first)
+    ca = topo.part_a[cd]
+    forest = topo.conductor_forest
     total = subtree_sums(forest, inj)
     out = np.zeros(len(cd))
     x = np.flatnonzero(forest.edge >= 0)

@@ -10,9 +10,10 @@ circuit keeps the geometry of the drawing.
 from __future__ import annotations
 
 import bisect
-from collections import defaultdict
+from collections import Counter, defaultdict
 from collections.abc import Callable
 from dataclasses import dataclass, field
+from itertools import chain
 
 from solver import Circuit, CircuitError
 
@@ -122,14 +123,15 @@ def _pieces(wires: list[Wire], stops: set[GridPoint]) -> list[_Piece]:
     return pieces
 
 
-def _add_part(c: Circuit, part: PlacedPart, ends: list[str]) -> None:
-    """Add ``part`` as solver primitives under its own name, so its current and drop read by name.
+def _add_part(c: Circuit, part: PlacedPart, a: str, b: str) -> None:
+    """Add ``part`` between points ``a`` and ``b`` as solver primitives under its own name,
+    so its current and drop read by name.
 
     Bench parts reduce to what the solver already has: a meter or fuse of no
     resistance is a closed switch (a conductor), an ideal voltmeter or a blown
     fuse an open switch, everything else a resistor.
     """
-    a, b, name, kind = ends[0], ends[1], part.name, part.kind
+    name, kind = part.name, part.kind
     if kind == "resistor":
         c.resistor(name, a, b, part.value("resistance"))
     elif kind == "cell":
@@ -207,7 +209,8 @@ def to_circuit(sketch: Sketch) -> Netlist:
     parts = sketch.parts
     wires = sketch.wires
     terminals = {p.name: p.terminals() for p in parts}
-    stops = {t for ts in terminals.values() for t in ts}
+    degree = Counter(chain.from_iterable(terminals.values()))   # conductors meeting at each point
+    stops = set(degree)
     stops.update(end for w in wires for end in w.ends)
     pieces = _pieces(wires, stops)
 
@@ -216,12 +219,10 @@ def to_circuit(sketch: Sketch) -> Netlist:
     for p, name in point_at.items():
         c.place(name, p[0], p[1])
 
-    degree: dict[GridPoint, int] = defaultdict(int)
     for part in parts:
-        for t in terminals[part.name]:
-            degree[t] += 1
         if part.kind != "ground":
-            _add_part(c, part, [point_at[t] for t in terminals[part.name]])
+            a, b = terminals[part.name]
+            _add_part(c, part, point_at[a], point_at[b])
 
     groups = _Groups()
     wire_parts: dict[int, list[str]] = {i: [] for i in range(len(wires))}
