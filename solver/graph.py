@@ -18,8 +18,9 @@ from scipy.sparse import csgraph, csr_matrix
 
 from .circuit import CELL, CURRENT_SOURCE, Circuit
 
-__all__ = ["Topology", "contract", "Forest", "adjacency", "components", "bfs_forest", "spanning_forest",
-           "least_resistance_forest", "component_roots", "accumulate_to_root", "subtree_sums", "multigraph"]
+__all__ = ["Topology", "contract", "Forest", "adjacency", "components", "strong_components", "bfs_forest",
+           "spanning_forest", "least_resistance_forest", "component_roots", "accumulate_to_root", "subtree_sums",
+           "multigraph"]
 
 
 @dataclass
@@ -150,17 +151,16 @@ def adjacency(n: int, u: np.ndarray, v: np.ndarray) -> csr_matrix:
     scipy would build it from COO, so traversals visit neighbours in the same
     order; built from the sorted keys directly (int32 indices, as csgraph
     uses), it skips scipy's conversion and checks. Parallel edges are one
-    entry: csgraph's strong component search mislabels or never ends on
-    repeated entries. Self-loops stay; no traversal takes them.
+    entry, as :func:`strong_components` needs. Self-loops stay; no traversal
+    takes them.
     """
-    key = np.concatenate([u * np.int64(n) + v, v * np.int64(n) + u])
-    key = np.sort(key, kind="stable")
+    n64 = np.int64(n)
+    key = np.sort(np.concatenate([u * n64 + v, v * n64 + u]), kind="stable")   # row * n + column
     distinct = np.ones(len(key), bool)
     distinct[1:] = key[1:] != key[:-1]
-    rows, cols = np.divmod(key[distinct], max(n, 1))
-    indptr = np.zeros(n + 1, dtype=np.int32)
-    np.cumsum(np.bincount(rows, minlength=n), out=indptr[1:])
-    return csr_matrix((np.ones(len(rows)), cols.astype(np.int32), indptr), shape=(n, n))
+    key = key[distinct]
+    indptr = np.searchsorted(key, np.arange(n + 1) * n64).astype(np.int32)
+    return csr_matrix((np.ones(len(key)), (key % max(n, 1)).astype(np.int32), indptr), shape=(n, n))
 
 
 def components(n: int, u: np.ndarray, v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -168,13 +168,23 @@ def components(n: int, u: np.ndarray, v: np.ndarray) -> tuple[np.ndarray, np.nda
 
     Returns (label of each vertex, lowest vertex of each component). On the
     symmetric :func:`adjacency` the strongly connected components are the
-    connected ones; csgraph's strong search (Pearce's algorithm) works on the
-    matrix as given, where its undirected search would first build the
-    transpose.
+    connected ones; csgraph's strong search works on the matrix as given,
+    where its undirected search would first build the transpose.
     """
     if len(u) == 0:   # no edges: each vertex alone
         return np.arange(n), np.arange(n)
-    k, label = csgraph.connected_components(adjacency(n, u, v), directed=True, connection="strong")
+    return strong_components(adjacency(n, u, v))
+
+
+def strong_components(graph: csr_matrix) -> tuple[np.ndarray, np.ndarray]:
+    """Strongly connected components of a directed graph, numbered in order of their lowest vertex.
+
+    Returns (label of each vertex, lowest vertex of each component), by
+    csgraph's search (Pearce's algorithm). ``graph`` must not repeat an
+    entry: on repeated entries that search mislabels or never ends.
+    """
+    n = graph.shape[0]
+    k, label = csgraph.connected_components(graph, directed=True, connection="strong")
     lowest = np.full(k, n, dtype=np.int64)
     np.minimum.at(lowest, label, np.arange(n))
     order = np.argsort(lowest)
@@ -273,7 +283,8 @@ def spanning_forest(n: int, u: np.ndarray, v: np.ndarray, weight: np.ndarray, ro
     lo, hi, idx = lo[order], hi[order], idx[order]
     if len(idx) == 0:
         return bfs_forest(n, u[:0], v[:0], roots)
-    first = np.r_[True, (lo[1:] != lo[:-1]) | (hi[1:] != hi[:-1])]
+    first = np.ones(len(idx), bool)
+    first[1:] = (lo[1:] != lo[:-1]) | (hi[1:] != hi[:-1])
     lo, hi, idx = lo[first], hi[first], idx[first]
     # The candidates, one per vertex pair in row-major order, are the upper triangle in canonical CSR.
     indptr = np.zeros(n + 1, dtype=np.int32)

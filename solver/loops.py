@@ -28,7 +28,7 @@ import numpy as np
 from scipy.sparse import csr_matrix
 from scipy.sparse import vstack as sp_vstack
 
-from .graph import Forest, Topology, bfs_forest, components, spanning_forest
+from .graph import Forest, Topology, bfs_forest, components, spanning_forest, strong_components
 
 __all__ = ["LoopSet", "window_loops", "fundamental_loops", "orient_clockwise", "crossing_mask"]
 
@@ -90,31 +90,30 @@ def _grid_crossings(p: np.ndarray, q: np.ndarray) -> np.ndarray | None:
     points are unique per point, checked by the caller.)
     """
     n = len(p)
-    if not (np.all(p == np.round(p)) and np.all(q == np.round(q))):
+    ends = np.concatenate([p, q])   # first ends, then second ends
+    if not np.all(ends == np.round(ends)):
         return None
     d = q - p
     if np.any((d[:, 0] != 0) & (d[:, 1] != 0)):
         return None
-    length = np.abs(d).sum(axis=1).astype(np.int64)
-    inner = np.maximum(length - 1, 0)
+    inner = np.maximum(np.abs(d).sum(axis=1).astype(np.int64) - 1, 0)
     total = int(inner.sum())
     if total > 50 * n + 1_000_000:
         return None
-    pi, qi = p.astype(np.int64), q.astype(np.int64)
-    lo = np.minimum(pi.min(axis=0), qi.min(axis=0))
-    span = int((np.maximum(pi, qi) - lo).max()) + 1
-    key_of = lambda xy: (xy[:, 0] - lo[0]) * span + (xy[:, 1] - lo[1])  # noqa: E731
+    ends = ends.astype(np.int64)
+    ends -= ends.min(axis=0)
+    span = int(ends.max()) + 1
+    end_keys = ends[:, 0] * span + ends[:, 1]   # one key per grid point
     step = np.sign(d).astype(np.int64)
     seg = np.repeat(np.arange(n), inner)
     k = 1 + np.arange(total) - np.repeat(np.cumsum(inner) - inner, inner)
-    p_key = key_of(pi)
-    inner_keys = p_key[seg] + (step[:, 0] * span + step[:, 1])[seg] * k   # key of p + k·step
+    inner_keys = end_keys[seg] + (step[:, 0] * span + step[:, 1])[seg] * k   # key of p + k·step
     mask = np.zeros(n, bool)
     if total == 0:
         return mask
     # All points, inner ones first, grouped by key in one sort: an inner point is in a crossing
     # when its key occurs again (inner or end), an end when its key occurs as an inner point.
-    keys = np.concatenate([inner_keys, p_key, key_of(qi)])
+    keys = np.concatenate([inner_keys, end_keys])
     owner = np.concatenate([seg, np.arange(n), np.arange(n)])
     order = np.argsort(keys)
     sk = keys[order]
@@ -221,13 +220,13 @@ def window_loops(topo: Topology) -> LoopSet | None:
     geo = np.concatenate([topo.branch_parts, topo.conductor_parts])
     pa, pb = topo.part_a[geo], topo.part_b[geo]
     used = _used_points(topo.n_points, pa, pb)
-    names = topo.point_names
-    if any(names[i] not in pos for i in used):
+    names = [topo.point_names[i] for i in used.tolist()]
+    if any(name not in pos for name in names):
         return None
     xy = np.full((topo.n_points, 2), np.nan)
-    xy[used] = [pos[names[i]] for i in used]
-    at = xy[used][np.lexsort((xy[used, 1], xy[used, 0]))]
-    if np.any(np.all(at[1:] == at[:-1], axis=1)):   # two points at one position
+    xy[used] = [pos[name] for name in names]
+    at = np.sort(xy[used, 0] + 1j * xy[used, 1])   # positions as complex numbers, sorted by x then y
+    if np.any(at[1:] == at[:-1]):   # two points at one position
         return None
     crossing = crossing_mask(xy[pa], xy[pb], pa, pb)
     lifted = np.zeros(len(geo), bool)
@@ -241,17 +240,20 @@ def window_loops(topo: Topology) -> LoopSet | None:
     # A ring of conductors would make faces that differ only by wires; keep a
     # spanning forest of the drawn conductors and lift the ring closers too
     # (their ends are joined anyway, so they close no loop of their own).
+    # The drawing's connected pieces are the islands unless conductors are lifted.
     dc = np.flatnonzero(~lifted[nb:])
     if len(dc) == len(topo.conductor_parts):
         cforest = topo.conductor_forest   # the same forest: over all conductors, from each node's lowest point
+        piece_of_point = topo.island[topo.node_of_point]
     else:
         ca, cb = pa[nb + dc], pb[nb + dc]
         cforest = bfs_forest(topo.n_points, ca, cb, components(topo.n_points, ca, cb)[1])
+        piece_of_point, _ = components(topo.n_points, np.concatenate([pa[:nb], ca]), np.concatenate([pb[:nb], cb]))
     ring = np.ones(len(dc), bool)
     ring[cforest.edge[cforest.edge >= 0]] = False
     lifted[nb + dc[ring]] = True
     drawn = np.flatnonzero(~lifted)
-    faces = _faces(topo, xy, pa[drawn], pb[drawn], np.minimum(drawn, nb))
+    faces = _faces(topo, xy, pa[drawn], pb[drawn], np.minimum(drawn, nb), piece_of_point)
     if faces is None:
         return None
     parts = [_isolate_shorted(faces, topo)]
@@ -272,11 +274,13 @@ def _used_points(n: int, pa: np.ndarray, pb: np.ndarray) -> np.ndarray:
     return np.flatnonzero(used)
 
 
-def _faces(topo: Topology, xy: np.ndarray, pa: np.ndarray, pb: np.ndarray, branch_of: np.ndarray) -> LoopSet | None:
+def _faces(topo: Topology, xy: np.ndarray, pa: np.ndarray, pb: np.ndarray, branch_of: np.ndarray,
+           piece_of_point: np.ndarray) -> LoopSet | None:
     """Bounded faces of a crossing-free straight-line drawing as clockwise loops.
 
     ``pa``/``pb`` are the point ids of the segments; ``branch_of[e]`` is the
-    branch of segment ``e``, or ``nb`` for a conductor (no term). Faces are
+    branch of segment ``e``, or ``nb`` for a conductor (no term);
+    ``piece_of_point`` labels the connected pieces of the drawing. Faces are
     traced with half-edges sorted by angle around each point; Euler's formula
     (bounded faces = E − V + C) confirms the drawing is planar as given.
     """
@@ -287,31 +291,34 @@ def _faces(topo: Topology, xy: np.ndarray, pa: np.ndarray, pb: np.ndarray, branc
     origin[0::2], origin[1::2] = pa, pb          # half-edge 2e runs a->b, 2e+1 runs b->a
     dest = np.empty(2 * m, np.int64)
     dest[0::2], dest[1::2] = pb, pa
-    d = xy[dest] - xy[origin]
+    at_o, at_d = xy[origin], xy[dest]
+    d = at_d - at_o
     angle = np.arctan2(d[:, 1], d[:, 0])
     order = np.lexsort((angle, origin))           # around each point by increasing angle
     rank = np.empty(2 * m, np.int64)
     rank[order] = np.arange(2 * m)
     o_sorted = origin[order]
-    first = np.searchsorted(o_sorted, o_sorted, side="left")
-    deg = np.searchsorted(o_sorted, o_sorted, side="right") - first
+    degree = np.bincount(origin, minlength=topo.n_points)
+    first = (np.cumsum(degree) - degree)[o_sorted]   # where each point's half-edges start in ``order``
+    deg = degree[o_sorted]
     # next(h) = the half-edge just before twin(h) in angular order around dest(h)
     rt = rank[np.arange(2 * m) ^ 1]
     start_t, deg_t = first[rt], deg[rt]
     nxt = order[start_t + (rt - start_t - 1) % deg_t]
-    # faces are the cycles of the permutation nxt, each numbered in order of its lowest half-edge
-    face, lowest = components(2 * m, np.arange(2 * m), nxt)
+    # The faces are the cycles of the permutation nxt (the strong components of h -> nxt[h]),
+    # each numbered in order of its lowest half-edge.
+    step_of = csr_matrix((np.ones(2 * m), nxt.astype(np.int32), np.arange(2 * m + 1, dtype=np.int32)),
+                         shape=(2 * m, 2 * m))
+    face, lowest = strong_components(step_of)
     ncomp = len(lowest)
-    cross = xy[origin, 0] * xy[dest, 1] - xy[dest, 0] * xy[origin, 1]
+    cross = at_o[:, 0] * at_d[:, 1] - at_d[:, 0] * at_o[:, 1]
     area = np.bincount(face, weights=cross, minlength=ncomp) / 2.0
     scale = np.bincount(face, weights=np.abs(cross), minlength=ncomp) + 1e-300
     bounded = area > 1e-12 * scale        # positive with y down = clockwise on screen
 
-    # Euler's formula over the drawn segments' own components.
-    remap = np.full(topo.n_points, -1, np.int64)
-    remap[used] = np.arange(len(used))
-    gk = len(components(len(used), remap[pa], remap[pb])[1])
-    if int(bounded.sum()) != m - len(used) + gk:
+    # Euler's formula over the drawing's own pieces.
+    pieces = np.count_nonzero(np.bincount(piece_of_point[used]))
+    if int(bounded.sum()) != m - len(used) + pieces:
         return None
 
     e = np.arange(2 * m) >> 1
@@ -514,15 +521,11 @@ def _cycle_positions(nxt: np.ndarray, face: np.ndarray, start: np.ndarray) -> np
     nfaces = len(start)
     is_start = np.zeros(n, bool)
     is_start[start] = True
-    dist = np.where(is_start, 0, 1).astype(np.int64)
+    dist = np.where(is_start, 0, 1).astype(np.int64)   # steps to the cycle's start; the start absorbs
     ptr = np.where(is_start, np.arange(n), nxt)
-    while True:
-        done = is_start[ptr]
-        if done.all():
-            break
-        ptr2 = np.where(done, ptr, ptr[ptr])
-        dist = np.where(done, dist, dist + dist[ptr])
-        ptr = ptr2
+    while not is_start[ptr].all():
+        dist = dist + dist[ptr]
+        ptr = ptr[ptr]
     length = np.bincount(face, minlength=nfaces)
     return (length[face] - dist) % length[face]
 
