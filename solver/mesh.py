@@ -89,7 +89,7 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
     # too ill-conditioned, the loops of a least-resistance tree. With resistances
     # spread over more than three decades the shallow tree is skipped: its loops may carry a
     # large resistance in several loops and lose digits without failing KVL.
-    # The potentials are walked along the same tree (see below).
+    # The potentials are walked along the tree of the fundamental loops tried (see below).
     positive = topo.br_r[topo.br_r > 0]
     wide = len(positive) > 0 and positive.max() > WIDE_SPREAD * positive.min()
     walk = least_resistance_forest(topo, roots) if wide else bfs_forest(n, topo.br_u, topo.br_v, roots,
@@ -168,13 +168,14 @@ def _branch_solution(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.nda
     """Loop currents, branch currents and branch voltages, checked against KVL."""
     j, w = _solve_mesh(topo, loops)
     cs = np.flatnonzero(topo.br_cs)
-    loop, branch, sign = _entries(loops.B)
+    entries = _entries(loops.B)
+    loop, branch, sign = entries
     i_br = np.bincount(branch, weights=sign * j[loop], minlength=topo.n_branches)   # Bᵀ·j
     i_br[cs] = topo.br_j[cs]
     v_br = topo.br_r * i_br + topo.br_e
     v_br[cs] = w
     size = np.abs(topo.br_r * i_br) + np.abs(topo.br_e) + np.abs(np.where(topo.br_cs, v_br, 0.0))
-    _check_kvl(loops, j, v_br, size, topo)
+    _check_kvl(loops, entries, j, v_br, size, topo)
     return j, i_br, v_br
 
 
@@ -264,7 +265,8 @@ def _extreme_parts(topo: Topology) -> list[str]:
     return [topo.part_names[topo.branch_parts[k]] for k in dict.fromkeys(picks)]
 
 
-def _check_kvl(loops: LoopSet, j: np.ndarray, v_br: np.ndarray, size: np.ndarray, topo: Topology) -> None:
+def _check_kvl(loops: LoopSet, entries: tuple[np.ndarray, np.ndarray, np.ndarray], j: np.ndarray,
+               v_br: np.ndarray, size: np.ndarray, topo: Topology) -> None:
     """Raise :class:`IllConditionedError` if any loop's KVL residual is above tolerance.
 
     The residual must be within ``KVL_TOLERANCE`` of the loop's terms as a
@@ -272,12 +274,13 @@ def _check_kvl(loops: LoopSet, j: np.ndarray, v_br: np.ndarray, size: np.ndarray
     rounding: 1e-15 of the loop's equation terms (each resistance times the
     loop currents through it, and the largest term in the circuit), which is
     what double precision can resolve when loop currents cancel in a branch.
+    ``entries`` are the loop matrix's, from :func:`_entries`.
     """
     if loops.n_loops == 0:
         return
     L = loops.n_loops
-    loop, branch, sign = _entries(loops.B)
-    res = np.abs(loops.B @ v_br)
+    loop, branch, sign = entries
+    res = np.abs(np.bincount(loop, weights=sign * v_br[branch], minlength=L))   # |B·v|
     mag = np.abs(sign)   # the entries of |B|
     through = np.bincount(branch, weights=mag * np.abs(j)[loop], minlength=topo.n_branches)   # |B|ᵀ·|j|
     equation = np.bincount(loop, weights=mag * (topo.br_r * through)[branch], minlength=L) \

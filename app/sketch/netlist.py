@@ -209,7 +209,7 @@ def to_circuit(sketch: Sketch) -> Netlist:
     parts = sketch.parts
     wires = sketch.wires
     terminals = {p.name: p.terminals() for p in parts}
-    degree = Counter(chain.from_iterable(terminals.values()))   # conductors meeting at each point
+    degree = Counter(chain.from_iterable(terminals.values()))   # terminals at each point; wire pieces below
     stops = set(degree)
     stops.update(end for w in wires for end in w.ends)
     pieces = _pieces(wires, stops)
