@@ -291,8 +291,7 @@ def _faces(topo: Topology, xy: np.ndarray, pa: np.ndarray, pb: np.ndarray, branc
     origin[0::2], origin[1::2] = pa, pb          # half-edge 2e runs a->b, 2e+1 runs b->a
     dest = np.empty(2 * m, np.int64)
     dest[0::2], dest[1::2] = pb, pa
-    at_o, at_d = xy[origin], xy[dest]
-    d = at_d - at_o
+    d = xy[dest] - xy[origin]
     angle = np.arctan2(d[:, 1], d[:, 0])
     order = np.lexsort((angle, origin))           # around each point by increasing angle
     rank = np.empty(2 * m, np.int64)
@@ -307,11 +306,10 @@ def _faces(topo: Topology, xy: np.ndarray, pa: np.ndarray, pb: np.ndarray, branc
     nxt = order[start_t + (rt - start_t - 1) % deg_t]
     # The faces are the cycles of the permutation nxt (the strong components of h -> nxt[h]),
     # each numbered in order of its lowest half-edge.
-    step_of = csr_matrix((np.ones(2 * m), nxt.astype(np.int32), np.arange(2 * m + 1, dtype=np.int32)),
-                         shape=(2 * m, 2 * m))
-    face, lowest = strong_components(step_of)
+    face, lowest = strong_components(csr_matrix(
+        (np.ones(2 * m), nxt.astype(np.int32), np.arange(2 * m + 1, dtype=np.int32)), shape=(2 * m, 2 * m)))
     ncomp = len(lowest)
-    cross = at_o[:, 0] * at_d[:, 1] - at_d[:, 0] * at_o[:, 1]
+    cross = xy[origin, 0] * xy[dest, 1] - xy[dest, 0] * xy[origin, 1]
     area = np.bincount(face, weights=cross, minlength=ncomp) / 2.0
     scale = np.bincount(face, weights=np.abs(cross), minlength=ncomp) + 1e-300
     bounded = area > 1e-12 * scale        # positive with y down = clockwise on screen
