@@ -124,7 +124,7 @@ class _PartMark(QGraphicsItem):
         self._text_of: float | None = None  # the value ``_text`` was written for
         self._text_rect: QRectF | None = None
         self._bounds = QRectF()
-        self._owner = parent
+        self._owner = parent  # the parent item: asking Qt for it costs a call each time
         self._advance = 0.0  # the width of the text ``_text_rect`` was laid out for
         self._fig: tuple | None = None  # what ``_lay_out`` worked out for the present text and layout
         self._visible = False  # what was last asked of setVisible (asking Qt again costs a call)

@@ -58,7 +58,7 @@ class CautionsPanel(QWidget):
         self.disclaimer.setObjectName("disclaimer")
         self.disclaimer.setStyleSheet("QLabel#disclaimer { font-style: italic; }")
         lay.addWidget(self.disclaimer)
-        self._entries: list = []  # what the list shows, to leave it alone when a solve changes nothing
+        self._entries: tuple = ()  # what the list was drawn from, to leave it alone when nothing changed
         self.list = QListWidget()
         self.list.setWordWrap(True)
         self.list.setAlternatingRowColors(True)
@@ -80,8 +80,9 @@ class CautionsPanel(QWidget):
 
     def _fill(self) -> None:
         shown = [c for c in self.cautions if c.severity != "info" or self.show_notes.isChecked()]
-        entries = [current_theme().name]  # the icons are drawn in the scheme's colours
-        entries += [(c.severity, c.message, tuple(c.parts)) for c in shown] or [self._problem, self.cautions == []]
+        # everything the list is drawn from (the icons take the scheme's colours)
+        entries = (current_theme().name, [(c.severity, c.message, tuple(c.parts)) for c in shown],
+                   self._problem, not self.cautions)
         if entries == self._entries:
             return  # the same list: keep the person's selection and scroll place, and skip a repaint
         self._entries = entries

@@ -378,12 +378,15 @@ class SketchScene(QGraphicsScene):
 
     @classmethod
     def _candidates(cls) -> np.ndarray:
-        """Every candidate place as (layout, x step, y step) in order of preference: full
+        """Every candidate place as (layout, x step, y step, flat) in order of preference: full
         layout before compact, nearest offset first, sides in order. ``layout`` indexes
-        ``_LAYOUTS``; the steps index ``LOOP_STEPS`` or ``COMPACT_STEPS``. The same for
-        every mark, so worked out once."""
+        ``_LAYOUTS``; the steps index ``LOOP_STEPS`` or ``COMPACT_STEPS``; ``flat`` indexes
+        the layouts' [x step, y step] score tables laid end to end. The same for every mark,
+        so worked out once."""
         cached = getattr(cls, "_candidates_cache", None)
         if cached is None:
+            sizes = [len(cls.COMPACT_STEPS if compact else cls.LOOP_STEPS) ** 2 for _, compact in cls._LAYOUTS]
+            start = [sum(sizes[:n]) for n in range(len(sizes))]
             rows = []
             for compact in (False, True):
                 steps = cls.COMPACT_STEPS if compact else cls.LOOP_STEPS
@@ -391,7 +394,8 @@ class SketchScene(QGraphicsScene):
                                key=lambda d: steps[d[0]] ** 2 + steps[d[1]] ** 2)
                 for k, (ix, iy) in enumerate(pairs):
                     for n, side in enumerate(LoopMark.SIDES):
-                        rows.append((compact, k, n, cls._LAYOUTS.index((side, compact)), ix, iy))
+                        layout = cls._LAYOUTS.index((side, compact))
+                        rows.append((compact, k, n, layout, ix, iy, start[layout] + ix * len(steps) + iy))
             rows.sort(key=lambda r: r[:3])
             cached = np.array([r[3:] for r in rows])
             cls._candidates_cache = cached
@@ -417,7 +421,7 @@ class SketchScene(QGraphicsScene):
         covers = np.array(self._weighted_covers(area.adjusted(-60, -60, 60, 60), mark), dtype=float).reshape(-1, 5)
         box = area if outlined else None
         hx, hy = mark.home.x(), mark.home.y()
-        costs, inside, starts = [], [], [0]
+        costs, inside = [], []
         for side, compact in self._LAYOUTS:
             steps = np.array(self.COMPACT_STEPS if compact else self.LOOP_STEPS)
             r = mark.rect_at(side, compact)
@@ -432,16 +436,14 @@ class SketchScene(QGraphicsScene):
                 in_x = (left >= box.left()) & (right <= box.right())
                 in_y = (top >= box.top()) & (bottom <= box.bottom())
                 inside.append((in_x[:, None] & in_y[None, :]).ravel())
-            starts.append(starts[-1] + len(steps) ** 2)
         cand = self._candidates()
-        sizes = np.array([len(self.COMPACT_STEPS if compact else self.LOOP_STEPS) for _, compact in self._LAYOUTS])
-        flat = np.array(starts[:-1])[cand[:, 0]] + cand[:, 1] * sizes[cand[:, 0]] + cand[:, 2]
+        flat = cand[:, 3]
         cost = np.concatenate(costs)[flat]
         ok = np.concatenate(inside)[flat]
         allowed = np.flatnonzero(ok)
         # best first: every free place in preference order, then the least covered
         for i in allowed[np.lexsort((allowed, cost[allowed]))]:
-            layout, ix, iy = cand[i]
+            layout, ix, iy, _ = cand[i]
             side, compact = self._LAYOUTS[layout]
             steps = self.COMPACT_STEPS if compact else self.LOOP_STEPS
             at = QPointF(hx + steps[ix], hy + steps[iy])
