@@ -14,7 +14,7 @@ from PySide6.QtGui import QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF
 from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
 
 from ..units import format_value
-from .items import CACHE, Z_MARK, Z_NOTE, PartItem, _paint_warning_sign, too_small
+from .items import Z_MARK, Z_NOTE, PartItem, _paint_warning_sign, too_small
 from .theme import current_theme, small_font
 
 __all__ = ["CurrentMark", "DropMark", "ReadingLayer", "PotentialTag", "LoopMark", "FaultNote", "LAYERS"]
@@ -49,6 +49,20 @@ def _arrow_head(x: float, y: float, dx: float, dy: float, size: float = 5.0) -> 
     return QPolygonF([QPointF(x, y), QPointF(bx + nx, by + ny), QPointF(bx - nx, by - ny)])
 
 
+def _static(text: str) -> QStaticText:
+    """``text`` laid out once for drawing (plain text, no markup)."""
+    st = QStaticText(text)
+    st.setTextFormat(Qt.TextFormat.PlainText)
+    return st
+
+
+def _centred(rect: QRectF, text: str) -> tuple[QPointF, QStaticText]:
+    """Where ``text`` goes centred in ``rect`` (as ``drawText`` with AlignCenter), ready to draw."""
+    fm = _fm()
+    return (QPointF(rect.left() + (rect.width() - fm.horizontalAdvance(text)) / 2,
+                    rect.top() + (rect.height() - fm.height()) / 2), _static(text))
+
+
 _CENTRE = int(Qt.AlignmentFlag.AlignCenter)
 _LEFT = int(Qt.AlignmentFlag.AlignLeft | Qt.AlignmentFlag.AlignVCenter)
 _RIGHT = int(Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter)
@@ -59,15 +73,17 @@ def _align(o: PartItem) -> int:
     return _CENTRE if o.horizontal else _LEFT if o.side > 0 else _RIGHT
 
 
-_PENS: dict[tuple[int, float], QPen] = {}
+_PENS: dict[tuple[int, float, bool], QPen] = {}
 
 
-def _pen(colour, width: float) -> QPen:
+def _pen(colour, width: float, round_cap: bool = False) -> QPen:
     """A pen of ``colour`` (a QColor) and ``width``, made once."""
-    key = (colour.rgba(), width)
+    key = (colour.rgba(), width, round_cap)
     pen = _PENS.get(key)
     if pen is None:
         pen = _PENS[key] = QPen(colour, width)
+        if round_cap:
+            pen.setCapStyle(Qt.PenCapStyle.RoundCap)
     return pen
 
 
@@ -110,6 +126,7 @@ class _PartMark(QGraphicsItem):
     LINE = 0
     ROOM = 0  # space kept beside the text for an arrow on upright parts
     UNIT = ""
+    GROUP = 0  # which of the layer's pens draws it (``ReadingLayer.GROUPS``)
 
     def __init__(self, parent: PartItem, layer: ReadingLayer) -> None:
         super().__init__(parent)
@@ -219,9 +236,7 @@ class _PartMark(QGraphicsItem):
             x = box.left()
         else:
             x = box.right() - self._advance
-        st = QStaticText(text)
-        st.setTextFormat(Qt.TextFormat.PlainText)
-        return QPointF(x, box.top() + (box.height() - _fm().height()) / 2), st
+        return QPointF(x, box.top() + (box.height() - _fm().height()) / 2), _static(text)
 
     def relayout(self) -> None:
         """Lay the box out again (the owner moved or turned, or an unusual value came)."""
@@ -283,6 +298,7 @@ class CurrentMark(_PartMark):
     LINE = 2
     ROOM = 14
     UNIT = "A"
+    GROUP = 0
 
     def _lay_out(self, text: str) -> tuple:
         o = self.owner
@@ -314,6 +330,7 @@ class DropMark(_PartMark):
 
     LINE = 3
     UNIT = "V"
+    GROUP = 1
 
     def _beside_body(self) -> QRectF:
         """The + and − marks: 9 px in from the terminals and 9 px out to the side, 3.2 px arms."""
@@ -344,33 +361,37 @@ class DropMark(_PartMark):
 
 
 class ReadingLayer(QGraphicsItem):
-    """Paints every part's current and drop marks in one pass.
+    """Paints every mark of the solution in one pass: part currents and drops, node
+    potential tags and loop currents.
 
     Each mark stays an item of its own (hit tests, layout, visibility) with no contents:
     hundreds of tiny items each cost a call into Python, a cached picture and a painter of
     their own on every change, where one item drawing them all costs little more than the
     texts and lines themselves. Marks ask for their box to be repainted (``update(rect)``);
-    the layer draws only those in the exposed area.
+    the layer draws only those in the exposed area, group by group (``GROUPS``), each
+    group with one pen and brush.
     """
+
+    GROUPS = ("currents", "drops", "potentials", "loops")
 
     def __init__(self) -> None:
         super().__init__()
         self.setZValue(Z_MARK)
         self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemUsesExtendedStyleOption, True)
         self.setAcceptedMouseButtons(Qt.MouseButton.NoButton)
-        self._marks: tuple[dict[int, _PartMark], dict[int, _PartMark]] = ({}, {})  # currents, drops
+        self._marks: tuple[dict[int, QGraphicsItem], ...] = tuple({} for _ in self.GROUPS)
         self._bounds = QRectF()
 
-    def add(self, mark: _PartMark) -> None:
-        """Paint ``mark`` from now on."""
-        self._marks[isinstance(mark, DropMark)][id(mark)] = mark
+    def add(self, mark) -> None:
+        """Paint ``mark`` from now on (a part mark, a potential tag or a loop mark)."""
+        self._marks[mark.GROUP][id(mark)] = mark
 
     def forget(self, owner: PartItem) -> None:
         """Stop painting the marks of ``owner`` (it leaves the drawing)."""
         for mark in (owner.current_mark, owner.drop_mark):
             if mark is not None:
                 mark.repaint()
-                self._marks[isinstance(mark, DropMark)].pop(id(mark), None)
+                self._marks[mark.GROUP].pop(id(mark), None)
 
     def grow(self, rect: QRectF) -> None:
         """Make room for a mark's box (the layer's box only grows: a larger one costs nothing)."""
@@ -393,9 +414,11 @@ class ReadingLayer(QGraphicsItem):
         th = current_theme()
         painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
         painter.setFont(small_font())
-        for marks, colour in zip(self._marks, (th.current, th.drop)):
-            painter.setPen(_pen(colour, 1.4))
-            painter.setBrush(colour)
+        looks = ((_pen(th.current, 1.4), th.current), (_pen(th.drop, 1.4), th.drop),
+                 (_pen(th.potential, 0.9), th.tag), (_pen(th.loop, 1.5, round_cap=True), th.loop))
+        for marks, (pen, brush) in zip(self._marks, looks):
+            painter.setPen(pen)
+            painter.setBrush(brush)
             lines: list[QLineF] = []
             for mark in marks.values():
                 if not mark._visible:
@@ -408,17 +431,83 @@ class ReadingLayer(QGraphicsItem):
                 painter.drawLines(lines)
 
 
-class PotentialTag(QGraphicsItem):
+class _HungMark(QGraphicsItem):
+    """A mark of a node or a loop, placed in the scene, painted by a ``ReadingLayer``.
+
+    Like the part marks it has no contents of its own; ``move_to``, ``set_shown`` and
+    ``_reshape`` keep its scene box (what the layer repaints) in step with it.
+    """
+
+    GROUP = 0
+
+    def __init__(self, layer: ReadingLayer) -> None:
+        super().__init__()
+        self.setZValue(Z_MARK)
+        self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, True)
+        self.layer = layer
+        self.active = False
+        self._visible = True
+        self._scene_box = (0.0, 0.0, 0.0, 0.0)
+        self._fig: tuple | None = None  # what ``_lay_out`` worked out for the present text and place
+        layer.add(self)
+
+    def move_to(self, at: QPointF) -> None:
+        """Put the mark at scene point ``at``."""
+        if at != self.pos():
+            self.setPos(at)
+            self._reshape()
+
+    def set_shown(self, on: bool) -> None:
+        if on != self._visible:
+            self._visible = on
+            self.setVisible(on)
+            self.repaint()
+
+    def repaint(self) -> None:
+        """Ask the layer to paint the mark's box again."""
+        left, top, right, bottom = self._scene_box
+        if right > left:
+            self.layer.update(QRectF(left, top, right - left, bottom - top))
+
+    def _reshape(self, repaint: bool = True) -> None:
+        """The mark's text, place or box changed: repaint where it was and where it is
+        (``repaint`` False: only take note, no view shows it large enough to draw)."""
+        if repaint:
+            self.repaint()
+        self._fig = None
+        box = self.boundingRect().translated(self.pos())
+        self._scene_box = (box.left(), box.top(), box.right(), box.bottom())
+        self.layer.grow(box)
+        if repaint:
+            self.repaint()
+
+    def draw(self, painter: QPainter, lines: list[QLineF]) -> None:
+        """Paint the mark with the layer's painter, in scene coordinates (pen, brush and font
+        are its group's); lines may go to ``lines``, drawn all at once."""
+        fig = self._fig
+        if fig is None:
+            fig = self._fig = self._lay_out()
+        self._draw(painter, lines, fig)
+
+    def _lay_out(self) -> tuple:
+        raise NotImplementedError
+
+    def _draw(self, painter: QPainter, lines: list[QLineF], fig: tuple) -> None:
+        raise NotImplementedError
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        """Nothing: the layer paints the mark (see ``draw``)."""
+
+
+class PotentialTag(_HungMark):
     """A small tag with a node's potential, hung from one of its grid points."""
 
     CORNERS = ((-1, -1), (1, -1), (-1, 1), (1, 1))
+    GROUP = 2
 
-    def __init__(self) -> None:
-        super().__init__()
-        self.setZValue(Z_MARK)
-        self.setCacheMode(CACHE)
+    def __init__(self, layer: ReadingLayer) -> None:
+        super().__init__(layer)
         self.text = ""
-        self.active = False
         self.at: tuple[int, int] | None = None  # the grid point it hangs from
         self._key: str | None = None  # ``_rounded`` of the value shown: all its text depends on
         self._rect = QRectF()
@@ -447,7 +536,7 @@ class PotentialTag(QGraphicsItem):
         self.prepareGeometryChange()
         self._corner = corner
         self._rect = self.rect_at(corner)
-        self.update()
+        self._reshape()
 
     def boundingRect(self) -> QRectF:
         return self._rect.united(QRectF(-1, -1, 2, 2)).adjusted(-1, -1, 1, 1)
@@ -457,23 +546,22 @@ class PotentialTag(QGraphicsItem):
         path.addRect(self._rect)
         return path
 
-    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
-        if too_small(painter):
-            return
-        th = current_theme()
-        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
-        painter.setPen(QPen(th.potential, 0.9))
-        r = self._rect
+    def _lay_out(self) -> tuple:
+        """(leader line, box, text's top left, static text) in scene coordinates."""
+        pos = self.pos()
+        r = self._rect.translated(pos)
         corner = QPointF(r.right() if self._corner[0] < 0 else r.left(),
                          r.bottom() if self._corner[1] < 0 else r.top())
-        painter.drawLine(QLineF(QPointF(0, 0), corner))
-        painter.setBrush(th.tag)
-        painter.drawRoundedRect(self._rect, 3, 3)
-        painter.setFont(small_font())
-        painter.drawText(self._rect, int(Qt.AlignmentFlag.AlignCenter), self.text)
+        return (QLineF(pos, corner), r, *_centred(r, self.text))
+
+    def _draw(self, painter: QPainter, lines: list[QLineF], fig: tuple) -> None:
+        leader, box, at, st = fig
+        painter.drawLine(leader)
+        painter.drawRoundedRect(box, 3, 3)
+        painter.drawStaticText(at, st)
 
 
-class LoopMark(QGraphicsItem):
+class LoopMark(_HungMark):
     """A circulating arrow inside a loop's window, with the loop's name and current.
 
     The text goes below, above, right or left of the arrow (``side``); where
@@ -484,16 +572,14 @@ class LoopMark(QGraphicsItem):
     R = 9.0
     R_COMPACT = 6.0
     SIDES = ("below", "above", "right", "left")
+    GROUP = 3
 
-    def __init__(self) -> None:
-        super().__init__()
-        self.setZValue(Z_MARK)
-        self.setCacheMode(CACHE)
+    def __init__(self, layer: ReadingLayer) -> None:
+        super().__init__(layer)
         self.clockwise = True
         self.name = ""
         self.full_text = ""
         self.text = ""
-        self.active = False
         self.home = QPointF()      # the window's centre, where the mark goes when there is room
         self.outline = QPolygonF()  # the window, in scene coordinates
         self.source: tuple | None = None  # (centre, corners) in grid units that home and outline came from
@@ -539,44 +625,40 @@ class LoopMark(QGraphicsItem):
         return QRectF(-r, -r, 2 * r, 2 * r).united(self.text_rect_at(side, compact))
 
     def set_layout(self, side: str, compact: bool, readable: bool = True) -> None:
-        """Lay the text out on ``side`` (``compact``: the name alone); the box changes only if it must."""
+        """Lay the text out on ``side`` (``compact``: the name alone); the box changes only if it must.
+
+        ``readable`` False (no view shows marks large enough to draw) asks for no repaint.
+        """
         rect = self.text_rect_at(side, compact)
         if rect != self._text_rect:
             self.prepareGeometryChange()
             self._text_rect = rect
         self.side, self.compact = side, compact
         self.text = self.name if compact else self.full_text
-        if readable:
-            self.update()
+        self._reshape(readable)
 
     def boundingRect(self) -> QRectF:
         r = self._radius(self.compact) + 4
         return QRectF(-r, -r, 2 * r, 2 * r).united(self._text_rect)
 
-    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
-        if too_small(painter):
-            return
-        th = current_theme()
-        painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
-        pen = QPen(th.loop, 1.5)
-        pen.setCapStyle(Qt.PenCapStyle.RoundCap)
-        painter.setPen(pen)
-        painter.setBrush(Qt.BrushStyle.NoBrush)
+    def _lay_out(self) -> tuple:
+        """(arc box, start, span, arrow head, text's top left, static text) in scene coordinates."""
+        x, y = self.pos().x(), self.pos().y()
         r = self._radius(self.compact)
-        rect = QRectF(-r, -r, 2 * r, 2 * r)
         # Qt angles: counter-clockwise positive (y up); the gap sits at the top
         start, span = (60 * 16, 300 * 16) if not self.clockwise else (120 * 16, -300 * 16)
-        painter.drawArc(rect, start, span)
-        end_deg = (start + span) / 16.0
-        tip = QPointF(r * math.cos(math.radians(end_deg)), -r * math.sin(math.radians(end_deg)))
-        # tangent along the direction of travel
-        sgn = 1 if span > 0 else -1
-        tx = -math.sin(math.radians(end_deg)) * sgn
-        ty = -math.cos(math.radians(end_deg)) * sgn
-        painter.setBrush(th.loop)
-        painter.drawPolygon(_arrow_head(tip.x() + tx * 2, tip.y() + ty * 2, tx, ty, 6))
-        painter.setFont(small_font())
-        painter.drawText(self._text_rect, int(Qt.AlignmentFlag.AlignCenter), self.text)
+        end = math.radians((start + span) / 16.0)
+        sgn = 1 if span > 0 else -1  # the tangent along the direction of travel
+        tx, ty = -math.sin(end) * sgn, -math.cos(end) * sgn
+        head = _arrow_head(x + r * math.cos(end) + tx * 2, y - r * math.sin(end) + ty * 2, tx, ty, 6)
+        return (QRectF(x - r, y - r, 2 * r, 2 * r), start, span, head,
+                *_centred(self._text_rect.translated(x, y), self.text))
+
+    def _draw(self, painter: QPainter, lines: list[QLineF], fig: tuple) -> None:
+        arc, start, span, head, at, st = fig
+        painter.drawArc(arc, start, span)
+        painter.drawPolygon(head)
+        painter.drawStaticText(at, st)
 
 
 class FaultNote(QGraphicsItem):

@@ -16,7 +16,7 @@ from .symbols import IEC, body_centre, paint_part, symbol_outline
 from .theme import GRID, current_theme, label_font
 from .valuetext import value_line
 
-__all__ = ["too_small", "PartItem", "WireItem", "JunctionDot", "LooseEnd", "RubberWire", "GridCursor",
+__all__ = ["too_small", "PartItem", "WireItem", "JunctionLayer", "LooseEnd", "RubberWire", "GridCursor",
            "value_text", "to_scene", "CACHE", "Z_WIRE", "Z_PART", "Z_MARK", "Z_NOTE"]
 
 Z_WIRE, Z_PART, Z_DOT, Z_MARK, Z_NOTE, Z_TOOL = 1.0, 2.0, 3.0, 4.0, 6.0, 8.0
@@ -279,30 +279,49 @@ class WireItem(QGraphicsItem):
         painter.drawLine(self.line)
 
 
-class JunctionDot(QGraphicsItem):
-    """A filled dot where three or more conductors join."""
+class JunctionLayer(QGraphicsItem):
+    """Every connection dot (where three or more conductors join), painted in one pass.
+
+    A dot is a point drawn with a round pen as wide as the dot, so all of them are one
+    ``drawPoints`` call; a change repaints only the dots that come or go.
+    """
 
     R = 3.6
 
     def __init__(self) -> None:
         super().__init__()
         self.setZValue(Z_DOT)
-        self.setCacheMode(CACHE)
+        self.setAcceptedMouseButtons(Qt.MouseButton.NoButton)
+        self.points: tuple[tuple[int, int], ...] = ()
+        self._dots = QPolygonF()
+        self._bounds = QRectF()
+
+    def set_points(self, points: list[tuple[int, int]]) -> None:
+        """Show dots at these grid points (and nowhere else)."""
+        new = tuple(points)
+        if new == self.points:
+            return
+        r = self.R + 1
+        for x, y in set(self.points).symmetric_difference(new):
+            self.update(QRectF(x * GRID - r, y * GRID - r, 2 * r, 2 * r))
+        self.points = new
+        self._dots = QPolygonF([to_scene(p) for p in new])
+        box = self._dots.boundingRect().adjusted(-r, -r, r, r)
+        if new and not self._bounds.contains(box):
+            self.prepareGeometryChange()
+            self._bounds = self._bounds.united(box)
 
     def boundingRect(self) -> QRectF:
-        return QRectF(-self.R - 1, -self.R - 1, 2 * self.R + 2, 2 * self.R + 2)
-
-    def shape(self) -> QPainterPath:
-        path = QPainterPath()
-        path.addEllipse(QPointF(0, 0), self.R, self.R)
-        return path
+        return self._bounds
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        if self._dots.isEmpty():
+            return
         painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
-        ink = current_theme().ink
-        painter.setPen(Qt.PenStyle.NoPen)
-        painter.setBrush(ink)
-        painter.drawEllipse(QPointF(0, 0), self.R, self.R)
+        pen = QPen(current_theme().ink, 2 * self.R)
+        pen.setCapStyle(Qt.PenCapStyle.RoundCap)
+        painter.setPen(pen)
+        painter.drawPoints(self._dots)
 
 
 class LooseEnd(QGraphicsItem):
@@ -315,6 +334,9 @@ class LooseEnd(QGraphicsItem):
         self.setZValue(Z_DOT)
         self.setCacheMode(CACHE)
         self.setToolTip("Not connected")
+
+    def set_shown(self, on: bool) -> None:
+        self.setVisible(on)
 
     def boundingRect(self) -> QRectF:
         r = self.R + 3

@@ -17,7 +17,7 @@ from PySide6.QtWidgets import QGraphicsScene, QStyleOptionGraphicsItem
 
 from ..sketch.model import Sketch
 from .annotations import CurrentMark, DropMark, FaultNote, LoopMark, PotentialTag, ReadingLayer
-from .items import TEXT_LOD, JunctionDot, LooseEnd, PartItem, WireItem, to_scene
+from .items import TEXT_LOD, JunctionLayer, LooseEnd, PartItem, WireItem, to_scene
 from .symbols import IEC
 from .theme import GRID
 
@@ -39,7 +39,8 @@ class SketchScene(QGraphicsScene):
         self._middle: tuple[float, float] | None = None  # the middle of the drawing labels face away from
         self._marked: dict[str, tuple[PartItem, object]] = {}  # per part: the item and reading its marks show
         self.wire_items: list[WireItem] = []
-        self._dots: list[JunctionDot] = []
+        self._dots = JunctionLayer()  # paints every connection dot
+        self.addItem(self._dots)
         self._loose: list[LooseEnd] = []
         self._tags: list[PotentialTag] = []
         self._loops: list[LoopMark] = []
@@ -233,26 +234,33 @@ class SketchScene(QGraphicsScene):
                     mark.set_layer(on)
         elif layer == "potentials":
             for t in self._tags:
-                t.setVisible(on and t.active)
+                t.set_shown(on and t.active)
         elif layer == "loops":
             for t in self._loops:
-                t.setVisible(on and t.active)
+                t.set_shown(on and t.active)
 
     # -- connections and results -----------------------------------------------
-    def _pool(self, pool: list, cls, n: int) -> list:
+    def _pool(self, pool: list, make, n: int) -> list:
+        """The first ``n`` items of ``pool`` (made by ``make()`` as needed); the rest hidden."""
         while len(pool) < n:
-            item = cls()
+            item = make()
             self.addItem(item)
             pool.append(item)
         for item in pool[n:]:
             if getattr(item, "active", True):
-                item.setVisible(False)
+                item.set_shown(False)
                 item.active = False
         return pool[:n]
 
+    def _new_tag(self) -> PotentialTag:
+        return PotentialTag(self._readings)
+
+    def _new_loop_mark(self) -> LoopMark:
+        return LoopMark(self._readings)
+
     def show_connections(self, junctions: list[tuple[int, int]], open_ends: list[tuple[int, int]]) -> None:
         """Dots where three or more conductors join; rings at ends that connect to nothing."""
-        self._hang(self._pool(self._dots, JunctionDot, len(junctions)), junctions)
+        self._dots.set_points(junctions)
         self._hang(self._pool(self._loose, LooseEnd, len(open_ends)), open_ends)
 
     @staticmethod
@@ -290,7 +298,7 @@ class SketchScene(QGraphicsScene):
             marked[name] = (item, r)
             item.current_mark.set_value(None if r is None else r[0], readable)
             item.drop_mark.set_value(None if r is None else r[1], readable)
-        marks = self._pool(self._loops, LoopMark, len(loops))
+        marks = self._pool(self._loops, self._new_loop_mark, len(loops))
         loops_on = self.layers["loops"]
         new_homes = []
         for k, (item, (c, name, i, cw)) in enumerate(zip(marks, loops)):
@@ -302,24 +310,24 @@ class SketchScene(QGraphicsScene):
                 item.source = source
                 if home != item.home or outline != item.outline or not item.active:
                     item.home, item.outline = home, outline
-                    item.setPos(home)
+                    item.move_to(home)
                     new_homes.append(item)
             item.set_loop(name, i, cw, readable)
             if not item.active:
                 item.active = True
-                item.setVisible(loops_on)
-        tags = self._pool(self._tags, PotentialTag, len(potentials))
+                item.set_shown(loops_on)
+        tags = self._pool(self._tags, self._new_tag, len(potentials))
         tags_on = self.layers["potentials"]
         moved = []
         for item, (p, v) in zip(tags, potentials):
             if p != item.at or not item.active:
                 item.at = p
-                item.setPos(to_scene(p))
+                item.move_to(to_scene(p))
                 moved.append(item)
             item.set_value(v)
             if not item.active:
                 item.active = True
-                item.setVisible(tags_on)
+                item.set_shown(tags_on)
         if len(tags) <= self.PLACE_TAGS_UP_TO:
             for item in moved:  # tags that stay put keep their corner
                 self._place_tag(item)
@@ -449,10 +457,10 @@ class SketchScene(QGraphicsScene):
             at = QPointF(hx + steps[ix], hy + steps[iy])
             if outlined and not mark.outline.containsPoint(at, Qt.FillRule.OddEvenFill):
                 continue
-            mark.setPos(at)
+            mark.move_to(at)
             mark.set_layout(side, compact)
             return
-        mark.setPos(mark.home)
+        mark.move_to(mark.home)
         mark.set_layout("below", True)
 
     @staticmethod
@@ -477,8 +485,8 @@ class SketchScene(QGraphicsScene):
             if item.current_mark is not None:
                 item.current_mark.set_value(None)
                 item.drop_mark.set_value(None)
-        self._pool(self._tags, PotentialTag, 0)
-        self._pool(self._loops, LoopMark, 0)
+        self._pool(self._tags, self._new_tag, 0)
+        self._pool(self._loops, self._new_loop_mark, 0)
 
     def _clear_fault(self) -> None:
         for name in self._flagged:
