@@ -10,6 +10,7 @@ pytest.importorskip("pytestqt")
 
 from PySide6.QtCore import Qt  # noqa: E402
 from PySide6.QtGui import QGuiApplication  # noqa: E402
+from PySide6.QtWidgets import QTabBar  # noqa: E402
 
 from app.sketch.fileio import load_sketch  # noqa: E402
 from app.sketch.model import BranchTag  # noqa: E402
@@ -42,6 +43,17 @@ def tag(qtbot, win, part: str, name: str) -> None:
     click(qtbot, win, part)
     assert win.scene.selected_parts() == [part]
     qtbot.keyClick(win.view, Qt.Key.Key_N)
+
+
+def show_equations(qtbot, win):
+    """Bring the Equations tab (tabbed with Readings) to the front by clicking it, as a person does."""
+    bar = next(b for b in win.findChildren(QTabBar)
+               if any(b.tabText(i) == "Equations" for i in range(b.count())))
+    tab = next(i for i in range(bar.count()) if bar.tabText(i) == "Equations")
+    qtbot.mouseClick(bar, Qt.MouseButton.LeftButton, pos=bar.tabRect(tab).center())
+    panel = win.hand.equations
+    qtbot.waitUntil(lambda: not panel.stale and bool(panel.shown))
+    return panel
 
 
 def check(qtbot, win, text: str):
@@ -118,7 +130,7 @@ def test_answers_typed_in_the_check_panel_are_compared_within_the_tolerance(qtbo
 
 
 def test_equations_selection_and_canvas_selection_follow_each_other(qtbot, win):
-    panel = win.hand.equations
+    panel = show_equations(qtbot, win)
     titles = [e.title for e in panel.shown]
     assert len([t for t in titles if t.startswith("KVL")]) == 2 and any(t.startswith("KCL") for t in titles)
     assert all("residual" in e.numeric for e in panel.shown)
@@ -145,7 +157,7 @@ def test_equations_selection_and_canvas_selection_follow_each_other(qtbot, win):
 
 
 def test_a_loop_traced_on_the_canvas_and_a_refused_one(qtbot, win):
-    panel = win.hand.equations
+    panel = show_equations(qtbot, win)
     before = len(panel.shown)
     qtbot.keyClick(win.view, Qt.Key.Key_L, Qt.KeyboardModifier.ControlModifier)
     assert win.hand.tracer.active
@@ -168,9 +180,23 @@ def test_a_loop_traced_on_the_canvas_and_a_refused_one(qtbot, win):
 
 
 def test_joining_the_two_windows_gives_the_outer_loop(qtbot, win):
-    panel = win.hand.equations
+    panel = show_equations(qtbot, win)
     for row, e in enumerate(panel.shown):
         panel.list.item(row).setSelected(e.law == "KVL")
     qtbot.mouseClick(panel.join_button, Qt.MouseButton.LeftButton)
     joined = panel.shown[-1]
     assert joined.label == "L1 + L2" and "R2" not in joined.parts  # the shared side cancels
+
+
+def test_the_equations_tab_behind_readings_is_brought_up_to_date_when_it_comes_to_the_front(qtbot, win):
+    panel = win.hand.equations
+    assert panel.visibleRegion().isEmpty()  # Readings is the front tab on a first start
+    win.editor.set_values("R2", {"resistance": 200.0})
+    qtbot.waitUntil(lambda: not win.hand.state.pending)
+    assert panel.stale  # nothing written out for a panel no one sees
+    panel = show_equations(qtbot, win)
+    kvl = [e for e in panel.shown if e.law == "KVL"]
+    assert len(kvl) == 2 and any("R2" in e.parts for e in kvl)
+    # the new value is in: every equation holds for the circuit as it is now (residual ~ 0)
+    assert all(abs(e.residual) < 1e-9 * e.size for e in panel.shown)
+    assert any("200" in e.numeric for e in panel.shown if "R2" in e.parts)

@@ -42,6 +42,7 @@ class EquationsPanel(QWidget):
         self.form = "branch"
         self.shown: list[Equation] = []
         self.own: list[tuple[str, object]] = []   # ("trace", (picks, direction)) or ("join", loops)
+        self.stale = False  # a newer analysis came while the panel was out of view
         self._syncing = False
 
         self.branch_button = QRadioButton("Branch currents")
@@ -102,7 +103,7 @@ class EquationsPanel(QWidget):
         lay.addWidget(self.note)
         lay.addLayout(loops)
         lay.addLayout(copy)
-        state.changed.connect(self.refresh)
+        state.changed.connect(self._analysis_changed)
 
     # -- filling ---------------------------------------------------------------------
     def set_form(self, form: str) -> None:
@@ -112,9 +113,19 @@ class EquationsPanel(QWidget):
             (self.branch_button if form == "branch" else self.mesh_button).setChecked(True)
             self.refresh()
 
+    def _analysis_changed(self) -> None:
+        """Rebuild now if the panel is on screen, else once it comes into view (``stale``):
+        writing out every equation of a few hundred parts takes longer than a frame, and
+        a panel tabbed away should not hold up drawing after each edit."""
+        if self.visibleRegion().isEmpty():
+            self.stale = True
+        else:
+            self.refresh()
+
     @guarded(_show_problem)
     def refresh(self) -> None:
         """Rebuild the list from the newest analysis, keeping the selection by label where possible."""
+        self.stale = False
         keep = {e.label for e in self.selected()}
         self._syncing = True
         try:
@@ -195,6 +206,8 @@ class EquationsPanel(QWidget):
 
     def select_labels(self, labels: Sequence[str]) -> None:
         """Select the equations with these labels (and show them on the canvas)."""
+        if self.stale:
+            self.refresh()
         for row, e in enumerate(self.shown):
             self.list.item(row).setSelected(e.label in labels)
 

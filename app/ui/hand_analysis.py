@@ -37,6 +37,7 @@ class HandAnalysis:
         self.check_dock = self._dock("Check", "check", self.checks)
         win.tabifyDockWidget(win.readings_dock, self.equations_dock)
         win.readings_dock.raise_()
+        self.equations_dock.visibilityChanged.connect(self._equations_in_view)
         self.ask_tag_name = self._ask_tag_name  # replaced by tests: (suggestion, part) -> name or None
         self.tracer = LoopTracer(win.view, self._point_positions, win)
         self.tracer.progress.connect(lambda m: win.hint(m, 15000))
@@ -260,6 +261,12 @@ class HandAnalysis:
         net = self.state.netlist
         if self.band is not None and net is not None:
             self.band.show_segments(part_segments(net, parts), "refused")
+
+    def _equations_in_view(self, visible: bool) -> None:
+        """The Equations panel came into view: bring it up to date and follow the canvas selection."""
+        if visible and self.equations.stale:
+            self.equations.refresh()
+            self._canvas_selection_changed()
 
     def _canvas_selection_changed(self) -> None:
         # the scene may already be gone (its C++ side deleted with the window) when a
