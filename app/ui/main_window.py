@@ -9,8 +9,8 @@ from pathlib import Path
 
 from PySide6.QtCore import QItemSelection, QItemSelectionModel, QSettings, Qt, QTimer, Signal
 from PySide6.QtGui import QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QUndoStack
-from PySide6.QtWidgets import (QApplication, QDockWidget, QFileDialog, QLabel, QMainWindow,
-                               QMessageBox, QSizePolicy, QToolBar, QToolButton, QVBoxLayout, QWidget)
+from PySide6.QtWidgets import (QApplication, QDockWidget, QFileDialog, QMainWindow,
+                               QMessageBox, QToolBar, QToolButton, QVBoxLayout, QWidget)
 
 from ..sketch.fileio import SaveError, SketchFileError, load_sketch, save_sketch
 from ..sketch.kinds import KINDS
@@ -26,6 +26,7 @@ from .scene import SketchScene
 from .session import start
 from .shot import render_scene
 from .solve_worker import LiveSolver, Result
+from .status_line import StatusLine
 from .symbols import IEC, STYLED_KINDS, STYLES
 from .theme import DARK, LIGHT, current_theme, set_theme
 from .view import SELECT, WIRE, CanvasView
@@ -87,13 +88,10 @@ class MainWindow(QMainWindow):
         self.readings_model = ReadingsModel(self)
         self.readings = ReadingsView(self.readings_model)
         self.part_panel = PartPanel()
-        self.status_text = QLabel()
-        self.status_text.setTextInteractionFlags(Qt.TextInteractionFlag.TextSelectableByMouse)
-        self.hint_text = QLabel()
+        self.status_text = StatusLine()  # new text repaints, never lays the window out again
+        self.hint_text = StatusLine()
         self.hint_text.setObjectName("hint")
-        self.where = QLabel()
-        for label in (self.status_text, self.hint_text):  # new text: no relayout of the status line
-            label.setSizePolicy(QSizePolicy.Policy.Ignored, QSizePolicy.Policy.Preferred)
+        self.where = StatusLine("x -00000  y -00000")
         self.statusBar().addWidget(self.status_text, 3)
         self.statusBar().addPermanentWidget(self.hint_text, 2)
         self.statusBar().addPermanentWidget(self.where)
