@@ -288,7 +288,8 @@ def test_moves_and_their_inverses_join_what_the_stretch_joins_and_leave_no_fold(
     nothing else touches; and leaves no stub the bare stretch would not leave."""
     s = build(parts, links)
     names = [p.name for p in s.parts]
-    steps = [([n for i, n in enumerate(names) if bits >> i & 1] or names[:1], dx, dy) for bits, dx, dy in moves]
+    steps = [([n for i, n in enumerate(names) if bits >> i & 1] or names[:1], dx, dy)
+             for bits, dx, dy in moves]
     steps += [(ns, -dx, -dy) for ns, dx, dy in reversed(steps)]
     folds_at_start = len(dead_folds(s))
     for ns, dx, dy in steps:

@@ -302,7 +302,9 @@ def _cut_back(w: Wire, q: GridPoint, ends: dict[GridPoint, set[int]], stops: set
     for c in range(q[axis] + step, other[axis], step):
         r = (c, q[1]) if axis == 0 else (q[0], c)
         if r in stops or ends.get(r):
-            return Wire(r[0], r[1], other[0], other[1]) if w.ends[0] == q else Wire(other[0], other[1], r[0], r[1])
+            if w.ends[0] == q:
+                return Wire(r[0], r[1], other[0], other[1])
+            return Wire(other[0], other[1], r[0], r[1])
     return None
 
 
