@@ -4,9 +4,16 @@ An ``Edit`` says how to go from one document to the next and back, using
 only the model's own methods, so an undo step is exact (the part order and
 the wire order are restored too). The functions here work out the edit for
 each drawing operation; they do not touch Qt.
+
+Wires that follow moved terminals are stretched wire by wire, which can make
+a wire's route run back over itself (a fold: two wires from one end point
+overlapping, with a dead-end stub at the turn).  Such folds are straightened
+when the edit is first applied, because only then are all terminals of the
+document known (see ``straighten``).
 """
 from __future__ import annotations
 
+from collections import defaultdict
 from collections.abc import Iterable
 from dataclasses import dataclass, field, replace
 
@@ -16,6 +23,7 @@ __all__ = [
     "Edit", "apply_edit", "revert_edit", "compose", "set_wires",
     "add_parts_edit", "delete_edit", "move_target", "change_edit", "wires_edit",
     "route", "rotate_edit", "rotate_target", "follow_points", "connected_points",
+    "FollowedWires", "straighten",
 ]
 
 GridPoint = tuple[int, int]
@@ -68,7 +76,12 @@ def set_wires(sketch: Sketch, target: tuple[Wire, ...]) -> None:
 
 
 def apply_edit(sketch: Sketch, edit: Edit) -> None:
-    """Carry out ``edit`` on ``sketch``."""
+    """Carry out ``edit`` on ``sketch``.
+
+    Wires that followed moved points (``FollowedWires``) have their folds
+    straightened here, against the terminals of the document as it now is, and
+    the edit keeps the result.
+    """
     for old, new, index in edit.parts:
         if old is None and new is not None:
             sketch.add_part(new)
@@ -76,6 +89,8 @@ def apply_edit(sketch: Sketch, edit: Edit) -> None:
             sketch.remove_part(old.name)
         elif old is not None and new is not None and old is not new:
             sketch.replace_part(old.name, new)
+    if isinstance(edit.wires_after, FollowedWires):  # settled once, so redo repeats it exactly
+        edit.wires_after = edit.wires_after.settle(t for p in sketch.parts for t in p.terminals())
     set_wires(sketch, edit.wires_after)
 
 
@@ -132,44 +147,225 @@ def move_target(parts: dict[str, PlacedPart], wires: tuple[Wire, ...], wire_indi
     return new_parts, follow_points(tuple(shifted), goes_to, skip=selected)
 
 
+class FollowedWires(tuple):
+    """Wires just after their ends followed moved points, folds not yet straightened.
+
+    ``changed`` holds the positions of the stretched and added wires,
+    ``carried`` those moved whole (by the caller, or with both ends).
+    Straightening needs every terminal of the document, which the move
+    functions are not given, so it is done by ``settle`` when the edit is
+    applied (see ``apply_edit``).
+    """
+
+    changed: frozenset[int]
+    carried: frozenset[int]
+
+    def __new__(cls, wires: Iterable[Wire], changed: Iterable[int] = (),
+                carried: Iterable[int] = ()) -> "FollowedWires":
+        self = super().__new__(cls, wires)
+        self.changed = frozenset(changed)
+        self.carried = frozenset(carried)
+        return self
+
+    def settle(self, terminals: Iterable[GridPoint]) -> tuple[Wire, ...]:
+        """The wires with their folds straightened (``terminals``: all terminals of the document)."""
+        return straighten(tuple(self), terminals, self.changed, self.carried)
+
+
 def follow_points(wires: tuple[Wire, ...], goes_to: dict[GridPoint, GridPoint],
-                  skip: Iterable[int] = ()) -> tuple[Wire, ...]:
+                  skip: Iterable[int] = ()) -> FollowedWires:
     """The wires after the points in ``goes_to`` moved (terminals of moved or turned parts).
 
     A wire with both ends moving goes with them when it stays straight; a wire
     with one end moving is stretched from its fixed end, keeping its direction,
     with a right-angle bend where needed (bends come after all other wires, so
-    wire indices before them keep their meaning). Wires in ``skip`` are left
-    as they are (already placed by the caller).
+    wire indices before them keep their meaning).  A changed wire keeps the
+    order of its ends.  Wires in ``skip`` are left as they are (already placed
+    by the caller).  Folds this makes are straightened when the edit is
+    applied (see ``FollowedWires``).
     """
     skip = set(skip)
     out: list[Wire] = []
     extra: list[Wire] = []
+    changed: list[int] = []
+    carried: list[int] = []
     for i, w in enumerate(wires):
         a, b = w.ends
         if i in skip or (a not in goes_to and b not in goes_to):
+            if i in skip:
+                carried.append(len(out))
             out.append(w)
             continue
         if a in goes_to and b in goes_to:
             na, nb = goes_to[a], goes_to[b]
             if na != nb and (na[0] == nb[0] or na[1] == nb[1]):
+                # carried whole, like a selected wire: straightening leaves it as it is, so that
+                # the move back brings it back
+                carried.append(len(out))
                 out.append(Wire(na[0], na[1], nb[0], nb[1]))
             elif na != nb:
                 corner = (nb[0], na[1])
+                changed.append(len(out))
                 out.append(Wire(na[0], na[1], corner[0], corner[1]))
                 extra.append(Wire(corner[0], corner[1], nb[0], nb[1]))
             continue
-        fixed, end = (b, a) if a in goes_to else (a, b)
+        moving_first = a in goes_to
+        fixed, end = (b, a) if moving_first else (a, b)
         goal = goes_to[end]
         if goal == fixed:
             continue
-        if goal[0] == fixed[0] or goal[1] == fixed[1]:
-            out.append(Wire(fixed[0], fixed[1], goal[0], goal[1]))
+        if goal[0] != fixed[0] and goal[1] != fixed[1]:
+            corner = (goal[0], fixed[1]) if w.y1 == w.y2 else (fixed[0], goal[1])
+            extra.append(Wire(corner[0], corner[1], goal[0], goal[1]))
+            goal = corner
+        changed.append(len(out))
+        out.append(Wire(goal[0], goal[1], fixed[0], fixed[1]) if moving_first
+                   else Wire(fixed[0], fixed[1], goal[0], goal[1]))
+    changed.extend(range(len(out), len(out) + len(extra)))
+    return FollowedWires(out + extra, changed, carried)
+
+
+def straighten(wires: tuple[Wire, ...], terminals: Iterable[GridPoint],
+               changed: Iterable[int] | None = None, carried: Iterable[int] = ()) -> tuple[Wire, ...]:
+    """``wires`` with every fold at an end of a ``changed`` wire taken out.
+
+    A fold is two wires sharing an end point P and running from it along the
+    same line to the same side, so that they lie over each other (the route
+    turns back on itself).  The overlap is made single: the longer wire is cut
+    back to the shorter one's far end, and the shorter one is kept only from
+    there up to the last point towards P that something else touches (a
+    terminal, another wire's end, or at P itself any other wire through P);
+    where nothing does, the stub is removed.  A changed wire left with a loose
+    end where this took away what touched it is cut back the same way.  No
+    point that anything else touches is removed and no wire end is made where
+    there was none, so which terminals are joined never changes.  Repeated
+    until nothing is left to do, as taking one fold out can bring the next
+    into line.  ``changed`` None means every wire; ``carried`` wires (moved
+    whole by the person) are never altered.  ``terminals`` (every terminal of
+    the document) is read only if a fold is found, so it may be a lazy
+    iterable.
+    """
+    work: list[Wire | None] = list(wires)
+    carried = set(carried)
+    changed = set(range(len(work)) if changed is None else changed) - carried
+    todo = set(changed)
+    ends: dict[GridPoint, set[int]] = defaultdict(set)
+    for k, w in enumerate(work):
+        for e in w.ends:
+            ends[e].add(k)
+    stops: set[GridPoint] | None = None
+
+    def put(k: int, new: Wire | None) -> list[GridPoint]:
+        """Set wire ``k`` to ``new``; the points that lost an end of it."""
+        old = work[k]
+        for e in old.ends:
+            ends[e].discard(k)
+        work[k] = new
+        if new is None:
+            return list(old.ends)
+        for e in new.ends:
+            ends[e].add(k)
+        changed.add(k)
+        todo.add(k)
+        return [e for e in old.ends if e not in new.ends]
+
+    while todo:
+        i = todo.pop()
+        fold = _fold_at(work, ends, i, carried) if work[i] is not None else None
+        if fold is None:
             continue
-        corner = (goal[0], fixed[1]) if w.y1 == w.y2 else (fixed[0], goal[1])
-        out.append(Wire(fixed[0], fixed[1], corner[0], corner[1]))
-        extra.append(Wire(corner[0], corner[1], goal[0], goal[1]))
-    return tuple(out + extra)
+        if stops is None:
+            stops = set(terminals)
+        j, p = fold
+        loose = []
+        for k, new in zip((i, j), _unfold(work, ends, stops, i, j, p)):
+            loose += put(k, new)
+        while loose:
+            q = loose.pop()
+            left = [k for k in ends.get(q, ()) if k in changed]
+            if len(left) == 1 and len(ends[q]) == 1 and q not in stops and not any(
+                    w is not None and k != left[0] and _on(w, q) for k, w in enumerate(work)):
+                loose += put(left[0], _cut_back(work[left[0]], q, ends, stops))
+    return tuple(w for w in work if w is not None)
+
+
+def _on(w: Wire, q: GridPoint) -> bool:
+    """Whether grid point ``q`` lies on wire ``w`` (ends included)."""
+    return (min(w.x1, w.x2) <= q[0] <= max(w.x1, w.x2)) and (min(w.y1, w.y2) <= q[1] <= max(w.y1, w.y2))
+
+
+def _cut_back(w: Wire, q: GridPoint, ends: dict[GridPoint, set[int]], stops: set[GridPoint]) -> Wire | None:
+    """Wire ``w`` with its loose end ``q`` drawn back to the first point that something touches."""
+    other = _far_end(w, q)
+    axis = 0 if w.y1 == w.y2 else 1
+    step = 1 if other[axis] > q[axis] else -1
+    for c in range(q[axis] + step, other[axis], step):
+        r = (c, q[1]) if axis == 0 else (q[0], c)
+        if r in stops or ends.get(r):
+            if w.ends[0] == q:
+                return Wire(r[0], r[1], other[0], other[1])
+            return Wire(other[0], other[1], r[0], r[1])
+    return None
+
+
+def _far_end(w: Wire, p: GridPoint) -> GridPoint:
+    a, b = w.ends
+    return b if a == p else a
+
+
+def _fold_at(work: list[Wire | None], ends: dict[GridPoint, set[int]], i: int,
+             carried: set[int]) -> tuple[int, GridPoint] | None:
+    """A wire folding back over wire ``i`` at one of its ends: ``(its index, the shared end)``."""
+    w = work[i]
+    horizontal = w.y1 == w.y2
+    for p in w.ends:
+        q = _far_end(w, p)
+        for j in ends[p]:
+            v = work[j]
+            if j == i or j in carried or (v.y1 == v.y2) != horizontal:
+                continue
+            r = _far_end(v, p)
+            axis = 0 if horizontal else 1
+            if (q[axis] > p[axis]) == (r[axis] > p[axis]):
+                return j, p
+    return None
+
+
+def _unfold(work: list[Wire | None], ends: dict[GridPoint, set[int]], stops: set[GridPoint],
+            i: int, j: int, p: GridPoint) -> tuple[Wire | None, Wire | None]:
+    """What wires ``i`` and ``j``, folded at ``p``, become (None: removed); see ``straighten``."""
+    axis = 0 if work[i].y1 == work[i].y2 else 1
+    far_i, far_j = _far_end(work[i], p), _far_end(work[j], p)
+    i_longer = abs(far_i[axis] - p[axis]) >= abs(far_j[axis] - p[axis])
+    far, near = (far_i, far_j) if i_longer else (far_j, far_i)
+
+    def touched(q: GridPoint) -> bool:
+        return q in stops or any(k not in (i, j) for k in ends.get(q, ()))
+
+    keep_to: GridPoint | None = None
+    if touched(p) or any(w is not None and k not in (i, j) and p in w.points()
+                         for k, w in enumerate(work)):
+        keep_to = p
+    else:
+        step = 1 if p[axis] > near[axis] else -1
+        for c in range(p[axis] - step, near[axis], -step):
+            q = (c, p[1]) if axis == 0 else (p[0], c)
+            if touched(q):
+                keep_to = q
+                break
+
+    def remade(k: int, a: GridPoint, b: GridPoint) -> Wire | None:
+        """Wire ``k`` now running from ``a`` (instead of ``p``) to ``b``, in its own end order."""
+        if a == b:
+            return None
+        if work[k].ends[0] == p:
+            return Wire(a[0], a[1], b[0], b[1])
+        return Wire(b[0], b[1], a[0], a[1])
+
+    longer, shorter = (i, j) if i_longer else (j, i)
+    new = {longer: remade(longer, near, far),
+           shorter: remade(shorter, keep_to, near) if keep_to is not None else None}
+    return new[i], new[j]
 
 
 def add_parts_edit(sketch: Sketch, parts: list[PlacedPart], wires: Iterable[Wire] = ()) -> Edit:
