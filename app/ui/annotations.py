@@ -8,6 +8,8 @@ the circuit cannot be solved, a note beside the parts named by the error.
 from __future__ import annotations
 
 import math
+from collections.abc import Iterator
+from contextlib import contextmanager
 
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
 from PySide6.QtGui import QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF, QStaticText, QTextOption
@@ -216,9 +218,7 @@ class _PartMark(QGraphicsItem):
 
     def repaint(self) -> None:
         """Ask the layer to paint the mark's box again."""
-        left, top, right, bottom = self._scene_box
-        if right > left:
-            self.layer.update(QRectF(left, top, right - left, bottom - top))
+        self.layer.repaint_box(self._scene_box)
 
     def _format(self, value: float) -> str:
         return format_value(abs(value), self.UNIT)
@@ -381,6 +381,40 @@ class ReadingLayer(QGraphicsItem):
         self.setAcceptedMouseButtons(Qt.MouseButton.NoButton)
         self._marks: tuple[dict[int, QGraphicsItem], ...] = tuple({} for _ in self.GROUPS)
         self._bounds = QRectF()
+        self._held: list[tuple[float, float, float, float]] | None = None
+
+    MANY = 40  # more boxes than this in one hold: one repaint of the whole layer
+
+    def repaint_box(self, box: tuple[float, float, float, float]) -> None:
+        """Paint a mark's scene box (left, top, right, bottom) again (at the end of a ``hold``)."""
+        left, top, right, bottom = box
+        if right <= left:
+            return
+        if self._held is not None:
+            self._held.append(box)
+        else:
+            self.update(QRectF(left, top, right - left, bottom - top))
+
+    @contextmanager
+    def hold(self) -> Iterator[None]:
+        """Gather the marks' repaints over a block (a whole solution laid on the drawing).
+
+        Past ``MANY`` boxes the layer is repainted whole: the view would repaint all of
+        its area for that many rectangles anyway, and one request costs less than hundreds.
+        """
+        if self._held is not None:
+            yield
+            return
+        self._held = []
+        try:
+            yield
+        finally:
+            boxes, self._held = self._held, None
+            if len(boxes) > self.MANY:
+                self.update()
+            else:
+                for left, top, right, bottom in boxes:
+                    self.update(QRectF(left, top, right - left, bottom - top))
 
     def add(self, mark) -> None:
         """Paint ``mark`` from now on (a part mark, a potential tag or a loop mark)."""
@@ -465,9 +499,7 @@ class _HungMark(QGraphicsItem):
 
     def repaint(self) -> None:
         """Ask the layer to paint the mark's box again."""
-        left, top, right, bottom = self._scene_box
-        if right > left:
-            self.layer.update(QRectF(left, top, right - left, bottom - top))
+        self.layer.repaint_box(self._scene_box)
 
     def _reshape(self, repaint: bool = True) -> None:
         """The mark's text, place or box changed: repaint where it was and where it is
@@ -533,9 +565,11 @@ class PotentialTag(_HungMark):
         return QRectF(x, y, w, h)
 
     def set_corner(self, corner: tuple[int, int]) -> None:
-        self.prepareGeometryChange()
+        rect = self.rect_at(corner)
+        if rect != self._rect:
+            self.prepareGeometryChange()
+            self._rect = rect
         self._corner = corner
-        self._rect = self.rect_at(corner)
         self._reshape()
 
     def boundingRect(self) -> QRectF:

@@ -225,6 +225,10 @@ class SketchScene(QGraphicsScene):
 
     def set_layer(self, layer: str, on: bool) -> None:
         """Show or hide one layer of annotations."""
+        with self._readings.hold():
+            self._set_layer(layer, on)
+
+    def _set_layer(self, layer: str, on: bool) -> None:
         self.layers[layer] = on
         if layer in ("currents", "drops"):
             attr = "current_mark" if layer == "currents" else "drop_mark"
@@ -284,6 +288,13 @@ class SketchScene(QGraphicsScene):
         ``outlines`` the corners of each loop's window (grid units), where its mark may go.
         Only marks whose value, place or visibility changed are touched.
         """
+        with self._readings.hold():
+            self._show_solution(readings, potentials, loops, outlines)
+
+    def _show_solution(self, readings: dict[str, tuple[float, float]],
+                       potentials: list[tuple[tuple[int, int], float]],
+                       loops: list[tuple[tuple[float, float], str, float, bool]],
+                       outlines: list[list[tuple[float, float]]] | None) -> None:
         self._clear_fault()
         self.solved = True
         readable = self.marks_readable()
@@ -479,6 +490,10 @@ class SketchScene(QGraphicsScene):
 
     def clear_results(self) -> None:
         """Hide every result (they no longer match the drawing)."""
+        with self._readings.hold():
+            self._clear_results()
+
+    def _clear_results(self) -> None:
         self.solved = False
         self._marked = {}
         for item in self.part_items.values():
