@@ -11,7 +11,7 @@ pytest.importorskip("pytestqt")
 
 from PySide6.QtCore import QPoint, QPointF, QSettings, Qt  # noqa: E402
 from PySide6.QtGui import QMouseEvent  # noqa: E402
-from PySide6.QtWidgets import QApplication  # noqa: E402
+from PySide6.QtWidgets import QApplication, QLineEdit  # noqa: E402
 
 from app.sketch.fileio import load_sketch  # noqa: E402
 from app.sketch.model import Sketch  # noqa: E402
@@ -316,3 +316,16 @@ def test_a_loop_drawn_with_the_keyboard_alone_is_solved(qtbot, win):
     assert win.scene.selected_parts() == ["R1"]
     key(qtbot, win, Qt.Key.Key_Right)
     assert s.part("R1").terminals() == [(5, 0), (5, 4)]
+
+
+
+def test_a_value_typed_in_the_part_panel_is_named_in_the_undo_menu(qtbot, win):
+    draw_two_meshes(qtbot, win)
+    name = next(p.name for p in win.sketch.parts if p.kind == "resistor")
+    win.scene.select([name])
+    edit = win.part_panel.findChild(QLineEdit, "resistance")
+    edit.clear()
+    qtbot.keyClicks(edit, "4k7")
+    qtbot.keyClick(edit, Qt.Key.Key_Return)
+    assert win.sketch.part(name).value("resistance") == 4700.0
+    assert win.stack.undoText() == f"Set {name} resistance 4.70 kΩ"

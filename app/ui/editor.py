@@ -16,6 +16,7 @@ from PySide6.QtGui import QUndoStack
 from ..sketch.fileio import NAME_PATTERN
 from ..sketch.kinds import KINDS, kind_spec
 from ..sketch.model import PlacedPart, Sketch, Wire
+from ..units import format_value
 from .commands import SketchCommand
 from .edits import (Edit, add_parts_edit, change_edit, delete_edit, move_target, rotate_edit,
                     route, wires_edit)
@@ -140,7 +141,7 @@ class Editor:
         part = self.sketch.part(name)
         merged = dict(part.values)
         merged.update(values)
-        self.push(change_edit(self.sketch, [(name, replace(part, values=merged))]), f"Change {name}")
+        self.push(change_edit(self.sketch, [(name, replace(part, values=merged))]), _values_text(part, values))
 
     def set_flag(self, name: str, key: str, on: bool) -> None:
         part = self.sketch.part(name)
@@ -212,3 +213,15 @@ class Editor:
 
     def reset_paste_offset(self) -> None:
         self._paste_shift = 0
+
+
+def _values_text(part: PlacedPart, values: dict[str, float]) -> str:
+    """What the undo step is called: ``Set R1 resistance 4.70 kΩ`` (``Change R1`` for an unknown key)."""
+    fields = {f.key: f for f in kind_spec(part.kind).value_fields}
+    said = []
+    for key, v in values.items():
+        f = fields.get(key)
+        if f is None:
+            return f"Change {part.name}"
+        said.append(f"{f.label.lower()} {format_value(v, f.unit) if f.prefixed else f'{v:g} {f.unit}'}")
+    return f"Set {part.name} " + ", ".join(said) if said else f"Change {part.name}"
