@@ -7,7 +7,7 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-from PySide6.QtCore import QItemSelection, QItemSelectionModel, QSettings, Qt, QTimer, Signal
+from PySide6.QtCore import QEvent, QItemSelection, QItemSelectionModel, QSettings, Qt, QTimer, Signal
 from PySide6.QtGui import QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QUndoStack
 from PySide6.QtWidgets import (QApplication, QDockWidget, QFileDialog, QMainWindow,
                                QMessageBox, QToolBar, QToolButton, QVBoxLayout, QWidget)
@@ -56,6 +56,10 @@ _FALLBACK_KEYS = {QKeySequence.StandardKey.Quit: "Ctrl+Q"}  # where a platform d
 
 def _demo_dir() -> Path:
     return Path(__file__).resolve().parents[2] / "demo_circuits"
+
+
+# the window's palette follows the application's, which follows the system's scheme
+_PALETTE_EVENTS = (QEvent.Type.PaletteChange, QEvent.Type.ApplicationPaletteChange)
 
 
 class MainWindow(QMainWindow):
@@ -612,6 +616,12 @@ class MainWindow(QMainWindow):
         if not files:
             a = self.examples_menu.addAction("No examples found")
             a.setEnabled(False)
+
+    def changeEvent(self, event: QEvent) -> None:  # noqa: N802 (Qt's name)
+        """Follow the system's light or dark palette live when the scheme is "system"."""
+        if event.type() in _PALETTE_EVENTS and getattr(self, "_scheme", "") == "system" and self.isVisible():
+            self.set_scheme("system")
+        super().changeEvent(event)
 
     def closeEvent(self, event: QCloseEvent) -> None:
         if not self.may_leave():
