@@ -197,7 +197,7 @@ def _supply(net: Netlist, sol: Solution) -> dict[str, float]:
 def _cable(p: PlacedPart, sol: Solution, net: Netlist, supply: dict[str, float]) -> Iterator[Caution]:
     drop = abs(sol.voltage(p.name))
     limit = p.value("drop_limit")
-    source_v = supply.get(net.point_at[p.terminals()[0]], 0.0)
+    source_v = supply.get(net.point_at[p.terminal_points[0]], 0.0)
     figures = {"drop": drop, "current": abs(sol.current(p.name)), "drop_limit": limit}
     if source_v <= 0:
         yield Caution("cable_drop", "info", p.name, f"{p.name} drops {_v(drop, 'V')}.", figures)

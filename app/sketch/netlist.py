@@ -208,7 +208,7 @@ def to_circuit(sketch: Sketch) -> Netlist:
     _check(sketch)
     parts = sketch.parts
     wires = sketch.wires
-    terminals = {p.name: p.terminals() for p in parts}
+    terminals = {p.name: p.terminal_points for p in parts}
     degree = Counter(chain.from_iterable(terminals.values()))   # terminals at each point; wire pieces below
     stops = set(degree)
     stops.update(end for w in wires for end in w.ends)
@@ -248,7 +248,7 @@ def to_circuit(sketch: Sketch) -> Netlist:
     )
 
 
-def _tie_grounds(c: Circuit, parts: list[PlacedPart], terminals: dict[str, list[GridPoint]],
+def _tie_grounds(c: Circuit, parts: list[PlacedPart], terminals: dict[str, tuple[GridPoint, ...]],
                  groups: _Groups, point_at: dict[GridPoint, str]) -> str | None:
     """Join the ground symbols' nodes into one; the ground point name or None.
 
