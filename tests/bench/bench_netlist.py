@@ -4,8 +4,9 @@ After every edit the window runs ``to_circuit()`` and then ``assess()`` on the
 solved result. For the 200-part grid of bench_live.py and each demo sketch
 this prints the median time of ``to_circuit()``, of replaying the same
 ``Circuit`` builder calls alone (resistor, cell, wire, place, …: the solver's
-share), the difference (the netlist's own share) and of ``assess()``.
-Each figure is given for several runs, since the machine is shared and noisy.
+share), the difference (the netlist's own share) and of ``assess()``, on
+one solution again and again and, as after an edit, each call on a fresh
+solution (whose looked-up-once tables are then built inside the call). Each figure is given for several runs, since the machine is shared and noisy.
 PySide6 is imported first, as in the desktop window.
 
 Run:  python tests/bench/bench_netlist.py [--calls 300] [--runs 3]
@@ -71,6 +72,16 @@ def replay(calls: list[tuple[str, tuple, dict]]) -> Circuit:
     return c
 
 
+def median_fresh_ms(fn, fresh: list) -> float:
+    """Median wall time of ``fn(x)`` in milliseconds, once for each ``x`` in ``fresh``."""
+    times = []
+    for x in fresh:
+        t0 = time.perf_counter()
+        fn(x)
+        times.append(time.perf_counter() - t0)
+    return statistics.median(times) * 1e3
+
+
 def median_ms(fn, calls: int) -> float:
     """Median wall time of ``fn()`` in milliseconds, after a few warm-up calls."""
     for _ in range(5):
@@ -92,7 +103,8 @@ def main(argv: list[str] | None = None) -> int:
     for path in sorted(glob.glob(os.path.join(ROOT, "demo_circuits", "*.lwsk"))):
         sketches.append((os.path.basename(path), load_sketch(path)))
     print("medians in ms, one figure per run; netlist's own = to_circuit - Circuit builders")
-    print(f"{'sketch':<30} {'to_circuit':>20} {'Circuit builders':>20} {'netlist own':>20} {'assess':>20}")
+    heads = ("to_circuit", "Circuit builders", "netlist own", "assess", "assess, fresh")
+    print(f"{'sketch':<30} " + " ".join(f"{h:>18}" for h in heads))
     for name, sketch in sketches:
         calls = builder_calls(sketch)
         net = netlist.to_circuit(sketch)
@@ -102,9 +114,11 @@ def main(argv: list[str] | None = None) -> int:
             total = median_ms(lambda: netlist.to_circuit(sketch), args.calls)
             builders = median_ms(lambda: replay(calls), args.calls)
             cautions = median_ms(lambda: assess(sketch, net, sol), args.calls)
-            rows.append((total, builders, total - builders, cautions))
-        cols = ["/".join(f"{r[k]:.2f}" for r in rows) for k in range(4)]
-        print(f"{name:<30} " + " ".join(f"{c:>20}" for c in cols), flush=True)
+            fresh = [solve(net.circuit, ground=net.ground) for _ in range(args.calls // 3)]
+            first = median_fresh_ms(lambda s: assess(sketch, net, s), fresh)
+            rows.append((total, builders, total - builders, cautions, first))
+        cols = ["/".join(f"{r[k]:.2f}" for r in rows) for k in range(5)]
+        print(f"{name:<30} " + " ".join(f"{c:>18}" for c in cols), flush=True)
     return 0
 
 
