@@ -14,13 +14,15 @@ from __future__ import annotations
 from collections.abc import Iterator
 from dataclasses import dataclass, field
 
+import numpy as np
+
 from solver import Solution
 
 from ..sketch.bench_parts import lamp_hot_resistance
 from ..sketch.model import PlacedPart, Sketch
 from ..sketch.netlist import Netlist
 from ..units import format_value
-from .meters import display_reading, read_meters
+from .meters import METER_KINDS, display_reading, read_meters
 from .topology import is_source, parallel_parts, series_partners
 
 __all__ = [
@@ -41,6 +43,7 @@ SHORTED_FRACTION = 0.1
 SEVERITIES = ("danger", "warning", "info")
 _NOISE = 1e-9  # relative: below this share of a scale a figure counts as zero
 _CURRENT_FLOOR = 1e-12  # A: a cell delivering less is idle
+_OVER_HAZARD = HAZARD_VOLTAGE * (1 + _NOISE)  # V: a voltage beyond this is over the hazard limit
 
 
 @dataclass(frozen=True)
@@ -76,19 +79,23 @@ def _pct(fraction: float) -> str:
 
 
 def _over_hazard(v: float) -> bool:
-    return abs(v) > HAZARD_VOLTAGE * (1 + _NOISE)
+    return abs(v) > _OVER_HAZARD
 
 
-def _hazards(sketch: Sketch, sol: Solution, net: Netlist) -> Iterator[Caution]:
-    for p in sketch.parts:
-        if p.kind == "ground":
+def _hazards(parts: list[PlacedPart], sol: Solution, net: Netlist) -> Iterator[Caution]:
+    names = sol.parts  # in the order of sol.voltages
+    over = {names[k] for k in np.flatnonzero(np.abs(sol.voltages) > _OVER_HAZARD)}
+    for p in parts:
+        if p.name not in over:
             continue
         v = sol.voltage(p.name)
-        if _over_hazard(v):
-            yield Caution("hazardous_voltage", "danger", p.name,
-                          f"{p.name} has {_v(abs(v), 'V')} across it, above {HAZARD_VOLTAGE:g} V DC: "
-                          "hazardous live (IEC 61010-1). Do not touch; work on it dead.",
-                          {"voltage": v, "limit": HAZARD_VOLTAGE})
+        yield Caution("hazardous_voltage", "danger", p.name,
+                      f"{p.name} has {_v(abs(v), 'V')} across it, above {HAZARD_VOLTAGE:g} V DC: "
+                      "hazardous live (IEC 61010-1). Do not touch; work on it dead.",
+                      {"voltage": v, "limit": HAZARD_VOLTAGE})
+    # With every potential within half the limit no point is beyond it, nor two points that far apart.
+    if 2.0 * float(np.abs(sol.node_potentials).max(initial=0.0)) <= _OVER_HAZARD:
+        return
     for island in sol.islands:
         points = sorted(island)
         pots = {pt: sol.potential(pt) for pt in points}
@@ -140,20 +147,26 @@ def _cells(p: PlacedPart, sol: Solution, scale: float) -> Iterator[Caution]:
                       {"hours": hours, "current": delivered, "capacity": capacity})
 
 
-def _resistor(p: PlacedPart, sol: Solution) -> Iterator[Caution]:
+def _resistor(p: PlacedPart, sol: Solution) -> Caution | None:
+    """The caution on a resistor run at over half its rating, if any.
+
+    One caution at most, so a plain function rather than a generator like the
+    others: it runs for every resistor, and most carry no rating.
+    """
     rating = p.value("power_rating")
+    if rating <= 0:
+        return None
     power = abs(sol.power(p.name))
-    if rating <= 0 or power <= RESISTOR_DERATING * rating:
-        return
+    if power <= RESISTOR_DERATING * rating:
+        return None
     figures = {"power": power, "power_rating": rating, "fraction": power / rating}
     if power > rating:
-        yield Caution("resistor_overload", "danger", p.name,
-                      f"{p.name} dissipates {_v(power, 'W')}, beyond its {_v(rating, 'W')} rating: "
-                      "it will overheat; use a larger rating or a different value.", figures)
-    else:
-        yield Caution("resistor_hot", "warning", p.name,
-                      f"{p.name} dissipates {_v(power, 'W')}, {_pct(power / rating)} of its {_v(rating, 'W')} "
-                      "rating; keep it at half or under (common practice).", figures)
+        return Caution("resistor_overload", "danger", p.name,
+                       f"{p.name} dissipates {_v(power, 'W')}, beyond its {_v(rating, 'W')} rating: "
+                       "it will overheat; use a larger rating or a different value.", figures)
+    return Caution("resistor_hot", "warning", p.name,
+                   f"{p.name} dissipates {_v(power, 'W')}, {_pct(power / rating)} of its {_v(rating, 'W')} "
+                   "rating; keep it at half or under (common practice).", figures)
 
 
 def _fuse(p: PlacedPart, sol: Solution) -> Iterator[Caution]:
@@ -197,7 +210,7 @@ def _supply(net: Netlist, sol: Solution) -> dict[str, float]:
 def _cable(p: PlacedPart, sol: Solution, net: Netlist, supply: dict[str, float]) -> Iterator[Caution]:
     drop = abs(sol.voltage(p.name))
     limit = p.value("drop_limit")
-    source_v = supply.get(net.point_at[p.terminals()[0]], 0.0)
+    source_v = supply.get(net.point_at[p.terminal_points[0]], 0.0)
     figures = {"drop": drop, "current": abs(sol.current(p.name)), "drop_limit": limit}
     if source_v <= 0:
         yield Caution("cable_drop", "info", p.name, f"{p.name} drops {_v(drop, 'V')}.", figures)
@@ -278,14 +291,18 @@ def assess(sketch: Sketch, netlist: Netlist, solution: Solution, *, meters: bool
     more with the meters made ideal.
     """
     scale = float(abs(solution.currents).max(initial=0.0))
-    kinds = {p.name: p.kind for p in sketch.parts}
-    supply = _supply(netlist, solution) if any(p.kind == "cable" for p in sketch.parts) else {}
-    out = list(_hazards(sketch, solution, netlist))
-    for p in sketch.parts:
-        if p.kind == "cell":
+    parts = sketch.parts
+    kinds = {p.name: p.kind for p in parts}
+    present = set(kinds.values())
+    supply = _supply(netlist, solution) if "cable" in present else {}
+    out = list(_hazards(parts, solution, netlist))
+    for p in parts:
+        if p.kind == "resistor":
+            caution = _resistor(p, solution)
+            if caution is not None:
+                out.append(caution)
+        elif p.kind == "cell":
             out += _cells(p, solution, scale)
-        elif p.kind == "resistor":
-            out += _resistor(p, solution)
         elif p.kind == "fuse":
             out += _fuse(p, solution)
         elif p.kind == "lamp":
@@ -296,6 +313,6 @@ def assess(sketch: Sketch, netlist: Netlist, solution: Solution, *, meters: bool
             out += _ammeter(p, solution, netlist, kinds)
         elif p.kind == "voltmeter":
             out += _voltmeter(p, solution, netlist)
-    if meters:
+    if meters and not present.isdisjoint(METER_KINDS):
         out += _meter_readings(sketch, solution)
     return sorted(out, key=lambda c: SEVERITIES.index(c.severity))

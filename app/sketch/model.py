@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 from dataclasses import dataclass, field, replace
+from functools import cache, cached_property
 
 from .kinds import KINDS, kind_spec
 
@@ -26,6 +27,15 @@ def transform(local: GridPoint, rotation: int, mirror: bool) -> GridPoint:
     for _ in range((rotation // 90) % 4):
         x, y = -y, x  # 90° clockwise with y pointing down
     return x, y
+
+
+@cache
+def _value_defaults(kind: str) -> dict[str, float]:
+    """The default of each value of ``kind`` by key (the kinds are fixed when the program starts)."""
+    out: dict[str, float] = {}
+    for f in kind_spec(kind).value_fields:
+        out.setdefault(f.key, f.default)
+    return out
 
 
 @dataclass(frozen=True)
@@ -49,22 +59,30 @@ class PlacedPart:
     label: str = ""
     choices: dict[str, str] = field(default_factory=dict)
 
-    def terminals(self) -> list[GridPoint]:
-        """Grid points of the terminals, in the kind's terminal order."""
-        spec = kind_spec(self.kind)
+    @cached_property
+    def terminal_points(self) -> tuple[GridPoint, ...]:
+        """Grid points of the terminals, in the kind's terminal order.
+
+        Worked out once per part: the fields they follow from are frozen, and
+        the netlist reads them for every part after every edit.
+        """
         out = []
-        for t in spec.terminals:
+        for t in kind_spec(self.kind).terminals:
             dx, dy = transform(t, self.rotation, self.mirror)
             out.append((self.x + dx, self.y + dy))
-        return out
+        return tuple(out)
+
+    def terminals(self) -> list[GridPoint]:
+        """Grid points of the terminals, in the kind's terminal order (a new list)."""
+        return list(self.terminal_points)
 
     def value(self, key: str) -> float:
         """The value ``key``, falling back to the kind's default."""
         if key in self.values:
             return self.values[key]
-        for f in kind_spec(self.kind).value_fields:
-            if f.key == key:
-                return f.default
+        defaults = _value_defaults(self.kind)
+        if key in defaults:
+            return defaults[key]
         raise KeyError(key)
 
     def flag(self, key: str) -> bool:

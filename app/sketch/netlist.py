@@ -57,8 +57,8 @@ def point_name(p: GridPoint) -> str:
     return f"{p[0]},{p[1]}"
 
 
-def _check(sketch: Sketch) -> None:
-    for part in sketch.parts:
+def _check(parts: list[PlacedPart], wires: list[Wire]) -> None:
+    for part in parts:
         if part.kind not in KINDS:
             raise CircuitError(f"{part.name} is of an unknown kind ({part.kind}).", [part.name])
         if part.name.startswith("~"):
@@ -66,8 +66,8 @@ def _check(sketch: Sketch) -> None:
                 f"The name {part.name} starts with '~', which is kept for wires; rename the part.",
                 [part.name],
             )
-    for i, w in enumerate(sketch.wires):
-        if (w.x1 != w.x2 and w.y1 != w.y2) or w.ends[0] == w.ends[1]:
+    for w in wires:
+        if (w.x1 == w.x2) == (w.y1 == w.y2):  # a run changes exactly one coordinate
             raise CircuitError(
                 f"The wire from ({w.x1}, {w.y1}) to ({w.x2}, {w.y2}) is not a horizontal or "
                 "vertical run between two different points.",
@@ -100,11 +100,11 @@ def _runs(wires: list[Wire]):
         yield horizontal, line, members[0][0], hi, members
 
 
-def _pieces(wires: list[Wire], stops: set[GridPoint]) -> list[_Piece]:
-    """Cut the merged runs at every stop (terminal or wire end) lying on them."""
+def _pieces(wires: list[Wire], stops: list[GridPoint]) -> list[_Piece]:
+    """Cut the merged runs at every stop (terminal or wire end, in sorted order) lying on them."""
     rows: dict[int, list[int]] = defaultdict(list)  # y -> xs of stops
     cols: dict[int, list[int]] = defaultdict(list)  # x -> ys of stops
-    for x, y in sorted(stops):
+    for x, y in stops:
         rows[y].append(x)
         cols[x].append(y)
     pieces: list[_Piece] = []
@@ -205,42 +205,42 @@ def to_circuit(sketch: Sketch) -> Netlist:
     wire parts ``~gnd1``, ``~gnd2``….  Raises ``CircuitError`` (with
     ``.parts``) for a sketch that cannot become a circuit.
     """
-    _check(sketch)
     parts = sketch.parts
     wires = sketch.wires
-    terminals = {p.name: p.terminals() for p in parts}
-    degree = Counter(chain.from_iterable(terminals.values()))   # terminals at each point; wire pieces below
+    _check(parts, wires)
+    degree = Counter(chain.from_iterable(p.terminal_points for p in parts))  # wire pieces added below
     stops = set(degree)
-    stops.update(end for w in wires for end in w.ends)
-    pieces = _pieces(wires, stops)
+    for w in wires:
+        stops.add((w.x1, w.y1))
+        stops.add((w.x2, w.y2))
+    points = sorted(stops)
+    pieces = _pieces(wires, points)
 
     c = Circuit()
-    point_at = {p: point_name(p) for p in sorted(stops)}
+    point_at = {p: point_name(p) for p in points}
     for p, name in point_at.items():
         c.place(name, p[0], p[1])
 
     for part in parts:
         if part.kind != "ground":
-            a, b = terminals[part.name]
+            a, b = part.terminal_points
             _add_part(c, part, point_at[a], point_at[b])
 
-    groups = _Groups()
     wire_parts: dict[int, list[str]] = {i: [] for i in range(len(wires))}
     for piece in pieces:
         c.wire(piece.name, point_at[piece.a], point_at[piece.b])
         degree[piece.a] += 1
         degree[piece.b] += 1
-        groups.join(piece.a, piece.b)
         for i in piece.wires:
             wire_parts[i].append(piece.name)
     for i, w in enumerate(wires):
-        if w.ends[0] > w.ends[1]:
+        if (w.x1, w.y1) > (w.x2, w.y2):
             wire_parts[i].reverse()  # list them from the wire's first end
 
-    ground = _tie_grounds(c, parts, terminals, groups, point_at)
+    grounds = [p.terminal_points[0] for p in parts if p.kind == "ground"]
     return Netlist(
         circuit=c,
-        ground=ground,
+        ground=_tie_grounds(c, grounds, pieces, point_at, degree),
         point_at=point_at,
         wire_parts=wire_parts,
         junctions=sorted(p for p, n in degree.items() if n >= 3),
@@ -248,26 +248,33 @@ def to_circuit(sketch: Sketch) -> Netlist:
     )
 
 
-def _tie_grounds(c: Circuit, parts: list[PlacedPart], terminals: dict[str, list[GridPoint]],
-                 groups: _Groups, point_at: dict[GridPoint, str]) -> str | None:
+def _tie_grounds(c: Circuit, grounds: list[GridPoint], pieces: list[_Piece],
+                 point_at: dict[GridPoint, str], degree: Counter[GridPoint]) -> str | None:
     """Join the ground symbols' nodes into one; the ground point name or None.
 
+    ``grounds`` are the symbols' points in the sketch's order (the first names
+    the ground), ``degree`` the terminals and wire pieces at each point.
     The symbols are tied in reading order (row by row, left to right), each to
     the previous one not yet joined, so that grounds along one rail are tied by
     short straight runs that cross nothing: the solver can then still use the
     windows of the drawing, as a person does who reads the grounds as one rail.
     """
-    grounds = list(dict.fromkeys(terminals[p.name][0] for p in parts if p.kind == "ground"))
     if not grounds:
         return None
-    first = grounds[0]
+    points = list(dict.fromkeys(grounds))
     n = 0
-    previous = None
-    for g in sorted(grounds, key=lambda p: (p[1], p[0])):
-        if previous is not None and groups.find(g) != groups.find(previous):
-            n += 1
-            c.wire(f"{GROUND_TIE_PREFIX}{n}", point_at[previous], point_at[g])
-            groups.join(g, previous)
-        previous = g
-    name = point_at[first]
-    return name if name in c.points else None
+    if len(points) > 1:
+        groups = _Groups()  # which points the wires already join
+        for piece in pieces:
+            groups.join(piece.a, piece.b)
+        previous = None
+        for g in sorted(points, key=lambda p: (p[1], p[0])):
+            if previous is not None and groups.find(g) != groups.find(previous):
+                n += 1
+                c.wire(f"{GROUND_TIE_PREFIX}{n}", point_at[previous], point_at[g])
+                groups.join(g, previous)
+            previous = g
+    # A symbol is no circuit part: its point is a circuit point only if a part, a wire piece or a tie
+    # ends there (with two or more symbol points, a tie reaches every one not already wired).
+    first = grounds[0]
+    return point_at[first] if n or degree[first] > grounds.count(first) else None
