@@ -165,6 +165,9 @@ def test_cell_into_a_near_short_is_flagged_and_a_real_load_is_not():
                                    part("resistor", "R1", resistance=0.001)))
     c = one(shorted, "cell_shorted", "B1")
     assert c.figures["current"] == pytest.approx(12.0 / 0.051)  # Ohm's law, E / (R + r)
+    # Joule's law: the heat inside the cell is I² r = (E / (R + r))² r, about 2.77 kW here
+    assert c.figures["internal_heat"] == pytest.approx((12.0 / 0.051) ** 2 * 0.05)
+    assert "2.77 kW turns to heat inside it" in c.message
     loaded = cautions(series_loop({"emf": 12.0, "internal_resistance": 0.05},
                                   part("resistor", "R1", resistance=1.0)))
     assert "cell_shorted" not in kinds(loaded)

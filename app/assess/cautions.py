@@ -124,10 +124,12 @@ def _cells(p: PlacedPart, sol: Solution, scale: float) -> Iterator[Caution]:
     delivered = -i  # passive convention: a delivering cell's current runs minus to plus
     tiny = max(_NOISE * scale, _CURRENT_FLOOR)
     if delivered > tiny and emf > 0 and v <= SHORTED_FRACTION * emf:
+        heat = delivered * delivered * p.value("internal_resistance")  # Joule heat in the cell, I² r
+        inside = f"; {_v(heat, 'W')} turns to heat inside it" if heat > 0 else ""
         yield Caution("cell_shorted", "danger", p.name,
                       f"{p.name} is shorted or nearly so: {_v(delivered, 'A')} with only {_v(v, 'V')} "
-                      f"left of its {_v(emf, 'V')}. A shorted cell heats fast and can burn or burst.",
-                      {"current": delivered, "voltage": v, "emf": emf})
+                      f"left of its {_v(emf, 'V')}{inside}. A shorted cell heats fast and can burn or burst.",
+                      {"current": delivered, "voltage": v, "emf": emf, "internal_heat": heat})
     limit = p.value("max_current")
     if limit > 0 and abs(i) > limit:
         yield Caution("cell_overcurrent", "danger", p.name,
