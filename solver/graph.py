@@ -2,9 +2,9 @@
 
 The hot path works on numpy arrays and scipy.sparse.csgraph (components and
 breadth-first trees run in C). Their adjacency matrices are built straight
-from sorted index arrays (:func:`adjacency`): on sketch-sized circuits
-scipy's own COO conversion and checks cost more than the graph algorithms
-themselves. :func:`multigraph` gives the same topology as a networkx
+from sorted index arrays (:func:`adjacency`) and handed to scipy as they are
+(:func:`canonical_csr`): on sketch-sized circuits scipy's own COO conversion
+and format checks cost more than the graph algorithms themselves. :func:`multigraph` gives the same topology as a networkx
 MultiGraph for reading and display, built only when asked for.
 """
 from __future__ import annotations
@@ -18,9 +18,35 @@ from scipy.sparse import csgraph, csr_matrix
 
 from .circuit import CELL, CURRENT_SOURCE, Circuit
 
-__all__ = ["Topology", "contract", "Forest", "adjacency", "components", "strong_components", "bfs_forest",
+__all__ = ["Topology", "contract", "Forest", "canonical_csr", "adjacency", "components", "strong_components", "bfs_forest",
            "spanning_forest", "least_resistance_forest", "component_roots", "accumulate_to_root", "subtree_sums",
            "multigraph"]
+
+
+# What a CSR matrix holds besides its arrays and shape (scipy's print limit), taken from one it built.
+_CSR_EXTRA = csr_matrix((1, 1)).__dict__.copy()
+_CSR_DIRECT = {"_shape", "data", "indices", "indptr"} <= _CSR_EXTRA.keys()
+for _key in ("_shape", "data", "indices", "indptr"):
+    _CSR_EXTRA.pop(_key, None)
+_new = object.__new__
+
+
+def canonical_csr(data: np.ndarray, indices: np.ndarray, indptr: np.ndarray,
+                  shape: tuple[int, int]) -> csr_matrix:
+    """A CSR matrix of arrays already in canonical form, without scipy's format checks.
+
+    ``indices`` and ``indptr`` must be int32, each row's columns ascending
+    and distinct, ``data`` float64 of the same length as ``indices``: what
+    every caller here builds. Scipy's constructor would only confirm that,
+    at about 35 µs a matrix (more than a graph search on a sketch). Where a
+    scipy version keeps its matrices differently, the ordinary constructor
+    is used.
+    """
+    if not _CSR_DIRECT:
+        return csr_matrix((data, indices, indptr), shape=shape)
+    m = _new(csr_matrix)
+    m.__dict__.update(_CSR_EXTRA, _shape=shape, data=data, indices=indices, indptr=indptr)
+    return m
 
 
 @dataclass
@@ -160,7 +186,7 @@ def adjacency(n: int, u: np.ndarray, v: np.ndarray) -> csr_matrix:
     distinct[1:] = key[1:] != key[:-1]
     key = key[distinct]
     indptr = np.searchsorted(key, np.arange(n + 1) * n64).astype(np.int32)
-    return csr_matrix((np.ones(len(key)), (key % max(n, 1)).astype(np.int32), indptr), shape=(n, n))
+    return canonical_csr(np.ones(len(key)), (key % max(n, 1)).astype(np.int32), indptr, (n, n))
 
 
 def components(n: int, u: np.ndarray, v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -289,7 +315,7 @@ def spanning_forest(n: int, u: np.ndarray, v: np.ndarray, weight: np.ndarray, ro
     # The candidates, one per vertex pair in row-major order, are the upper triangle in canonical CSR.
     indptr = np.zeros(n + 1, dtype=np.int32)
     np.cumsum(np.bincount(lo, minlength=n), out=indptr[1:])
-    candidates = csr_matrix((weight[idx], hi.astype(np.int32), indptr), shape=(n, n))
+    candidates = canonical_csr(np.asarray(weight[idx], dtype=float), hi.astype(np.int32), indptr, (n, n))
     mst = csgraph.minimum_spanning_tree(candidates, overwrite=True)
     t_row = np.repeat(np.arange(n), np.diff(mst.indptr))
     tkey = np.minimum(t_row, mst.indices) * n + np.maximum(t_row, mst.indices)

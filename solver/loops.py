@@ -29,7 +29,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.sparse import csr_matrix
 
-from .graph import Forest, Topology, bfs_forest, components, spanning_forest
+from .graph import Forest, Topology, bfs_forest, canonical_csr, components, spanning_forest
 
 __all__ = ["LoopSet", "window_loops", "fundamental_loops", "orient_clockwise", "crossing_mask"]
 
@@ -61,7 +61,7 @@ class LoopSet:
         """B as a scipy CSR matrix over ``nb`` branches (for the sparse solve of large systems)."""
         indptr = np.zeros(self.n_loops + 1, dtype=np.int32)
         np.cumsum(np.bincount(self.b_loop, minlength=self.n_loops), out=indptr[1:])
-        return csr_matrix((self.b_value, self.b_branch.astype(np.int32), indptr), shape=(self.n_loops, nb))
+        return canonical_csr(self.b_value, self.b_branch.astype(np.int32), indptr, (self.n_loops, nb))
 
     def flip(self, mask: np.ndarray) -> None:
         """Reverse the direction of the loops in ``mask`` (their order and signs)."""
