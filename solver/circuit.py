@@ -64,6 +64,9 @@ def _check_value(name: str, what: str, value: float, *, zero_ok: bool, turn_hint
         v = float(value)
     except (TypeError, ValueError):
         raise InvalidValueError(f"{name}: the {what} {value!r} is not a number.", [name]) from None
+    # Every value a real part has passes this one comparison (NaN fails it); the rest are sorted out below.
+    if (MIN_RESISTANCE if what[-10:] == "resistance" else 1e-300) <= v <= MAX_VALUE:
+        return v
     if math.isnan(v):
         raise InvalidValueError(f"{name}: the {what} is not a number (NaN).", [name])
     if math.isinf(v):
@@ -88,6 +91,18 @@ def _check_value(name: str, what: str, value: float, *, zero_ok: bool, turn_hint
     return v
 
 
+_new_part = object.__new__
+
+
+def _make_part(name: str, kind: str, a: str, b: str, resistance: float = 0.0, emf: float = 0.0,
+               current: float = 0.0, closed: bool = True) -> Part:
+    """``Part(...)`` without the frozen dataclass's per-field ``object.__setattr__`` calls (a quarter of the cost)."""
+    part = _new_part(Part)
+    part.__dict__.update(name=name, kind=kind, a=a, b=b, resistance=resistance, emf=emf, current=current,
+                         closed=closed)
+    return part
+
+
 class Circuit:
     """Named points joined by two-terminal parts.
 
@@ -105,48 +120,44 @@ class Circuit:
         self._positions: dict[str, tuple[float, float]] = {}
 
     # -- building -----------------------------------------------------------
-    def _add(self, part: Part) -> None:
-        if not isinstance(part.name, str) or not part.name.strip():
+    def _add(self, name: str, kind: str, a: str, b: str, resistance: float = 0.0, emf: float = 0.0,
+             current: float = 0.0, closed: bool = True) -> None:
+        if not (isinstance(name, str) and name.strip()):
             raise InvalidValueError("Every part needs a name.", [])
-        for t in (part.a, part.b):
-            if not isinstance(t, str) or not t:
-                raise InvalidValueError(f"{part.name}: terminal names must be non-empty text.", [part.name])
-        if part.name in self._parts:
-            raise DuplicateNameError(
-                f"Two parts are named {part.name}; each part needs its own name.", [part.name]
-            )
-        if part.a == part.b:
-            raise SelfConnectedError(
-                f"{part.name} has both terminals on the same point {part.a}.", [part.name]
-            )
-        self._parts[part.name] = part
+        if not (isinstance(a, str) and a and isinstance(b, str) and b):
+            raise InvalidValueError(f"{name}: terminal names must be non-empty text.", [name])
+        parts = self._parts
+        if name in parts:
+            raise DuplicateNameError(f"Two parts are named {name}; each part needs its own name.", [name])
+        if a == b:
+            raise SelfConnectedError(f"{name} has both terminals on the same point {a}.", [name])
+        parts[name] = _make_part(name, kind, a, b, resistance, emf, current, closed)
 
     def resistor(self, name: str, a: str, b: str, resistance: float) -> None:
         """Add a resistor of ``resistance`` ohms between ``a`` and ``b``."""
-        r = _check_value(name, "resistance", resistance, zero_ok=False)
-        self._add(Part(name, RESISTOR, a, b, resistance=r))
+        self._add(name, RESISTOR, a, b, _check_value(name, "resistance", resistance, zero_ok=False))
 
     def cell(self, name: str, plus: str, minus: str, emf: float,
              internal_resistance: float = 0.0) -> None:
         """Add a cell or battery: EMF in volts, internal resistance in ohms (0 = ideal)."""
         e = _check_value(name, "EMF", emf, zero_ok=True, turn_hint=True)
         r = _check_value(name, "internal resistance", internal_resistance, zero_ok=True)
-        self._add(Part(name, CELL, plus, minus, resistance=r, emf=e))
+        self._add(name, CELL, plus, minus, r, e)
 
     def current_source(self, name: str, a: str, b: str, current: float) -> None:
         """Add an ideal current source driving ``current`` amperes through itself from a to b."""
-        i = _check_value(name, "current", current, zero_ok=True, turn_hint=True)
-        self._add(Part(name, CURRENT_SOURCE, a, b, current=i))
+        self._add(name, CURRENT_SOURCE, a, b, current=_check_value(name, "current", current, zero_ok=True,
+                                                                   turn_hint=True))
 
     def wire(self, name: str, a: str, b: str) -> None:
         """Add a zero-ohm wire; its ends become one node."""
-        self._add(Part(name, WIRE, a, b))
+        self._add(name, WIRE, a, b)
 
     def switch(self, name: str, a: str, b: str, closed: bool = True) -> None:
         """Add a switch: closed it is a zero-ohm connection, open it is no branch."""
         if not isinstance(closed, bool):
             raise InvalidValueError(f"{name}: a switch is either closed or open.", [name])
-        self._add(Part(name, SWITCH, a, b, closed=closed))
+        self._add(name, SWITCH, a, b, closed=closed)
 
     def place(self, point: str, x: float, y: float) -> None:
         """Give ``point`` a grid position (x to the right, y downwards, as on screen)."""

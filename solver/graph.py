@@ -2,9 +2,9 @@
 
 The hot path works on numpy arrays and scipy.sparse.csgraph (components and
 breadth-first trees run in C). Their adjacency matrices are built straight
-from sorted index arrays (:func:`adjacency`): on sketch-sized circuits
-scipy's own COO conversion and checks cost more than the graph algorithms
-themselves. :func:`multigraph` gives the same topology as a networkx
+from sorted index arrays (:func:`adjacency`) and handed to scipy as they are
+(:func:`canonical_csr`): on sketch-sized circuits scipy's own COO conversion
+and format checks cost more than the graph algorithms themselves. :func:`multigraph` gives the same topology as a networkx
 MultiGraph for reading and display, built only when asked for.
 """
 from __future__ import annotations
@@ -16,11 +16,37 @@ import networkx as nx
 import numpy as np
 from scipy.sparse import csgraph, csr_matrix
 
-from .circuit import CELL, CURRENT_SOURCE, Circuit
+from .circuit import CELL, CURRENT_SOURCE, RESISTOR, SWITCH, WIRE, Circuit
 
-__all__ = ["Topology", "contract", "Forest", "adjacency", "components", "strong_components", "bfs_forest",
+__all__ = ["Topology", "contract", "Forest", "canonical_csr", "adjacency", "components", "strong_components", "bfs_forest",
            "spanning_forest", "least_resistance_forest", "component_roots", "accumulate_to_root", "subtree_sums",
            "multigraph"]
+
+
+# What a CSR matrix holds besides its arrays and shape (scipy's print limit), taken from one it built.
+_CSR_EXTRA = csr_matrix((1, 1)).__dict__.copy()
+_CSR_DIRECT = {"_shape", "data", "indices", "indptr"} <= _CSR_EXTRA.keys()
+for _key in ("_shape", "data", "indices", "indptr"):
+    _CSR_EXTRA.pop(_key, None)
+_new = object.__new__
+
+
+def canonical_csr(data: np.ndarray, indices: np.ndarray, indptr: np.ndarray,
+                  shape: tuple[int, int]) -> csr_matrix:
+    """A CSR matrix of arrays already in canonical form, without scipy's format checks.
+
+    ``indices`` and ``indptr`` must be int32, each row's columns ascending
+    and distinct, ``data`` float64 of the same length as ``indices``: what
+    every caller here builds. Scipy's constructor would only confirm that,
+    at about 35 µs a matrix (more than a graph search on a sketch). Where a
+    scipy version keeps its matrices differently, the ordinary constructor
+    is used.
+    """
+    if not _CSR_DIRECT:
+        return csr_matrix((data, indices, indptr), shape=shape)
+    m = _new(csr_matrix)
+    m.__dict__.update(_CSR_EXTRA, _shape=shape, data=data, indices=indices, indptr=indptr)
+    return m
 
 
 @dataclass
@@ -87,6 +113,13 @@ class Topology:
         return len(self.branch_parts)
 
 
+_BRANCH, _CONDUCTOR, _NONE = 0, 1, 2
+# Each part's role by (kind, closed), as Part.is_branch / Part.is_conductor say, in one look-up.
+_ROLE = {(kind, closed): _BRANCH if kind in (RESISTOR, CELL, CURRENT_SOURCE)
+         else _CONDUCTOR if kind == WIRE or (kind == SWITCH and closed) else _NONE
+         for kind in (RESISTOR, CELL, CURRENT_SOURCE, WIRE, SWITCH) for closed in (True, False)}
+
+
 def contract(circuit: Circuit) -> Topology:
     """Merge the points joined by wires and closed switches into nodes.
 
@@ -94,25 +127,21 @@ def contract(circuit: Circuit) -> Topology:
     runs in C; the islands are the components of the nodes joined by branches.
     """
     parts = circuit.parts
-    point_index: dict[str, int] = {}
-    a_list, b_list = [], []
-    for p in parts:  # one pass; points are numbered in order of first use
-        a_list.append(point_index.setdefault(p.a, len(point_index)))
-        b_list.append(point_index.setdefault(p.b, len(point_index)))
-    point_names = list(point_index)
+    ends = [end for p in parts for end in (p.a, p.b)]
+    point_names = list(dict.fromkeys(ends))   # numbered in order of first use
+    point_index = {name: i for i, name in enumerate(point_names)}
     n = len(point_names)
-    pa = np.array(a_list, dtype=np.int64)
-    pb = np.array(b_list, dtype=np.int64)
+    ab = np.array(list(map(point_index.__getitem__, ends)), dtype=np.int64).reshape(-1, 2)
+    pa, pb = ab[:, 0].copy(), ab[:, 1].copy()
     kinds = [p.kind for p in parts]
-    conductor = np.array([p.is_conductor for p in parts], dtype=bool)
-    branch = np.array([p.is_branch for p in parts], dtype=bool)
+    role = np.array([_ROLE[p.kind, p.closed] for p in parts], dtype=np.int8)
 
-    cd = np.flatnonzero(conductor)
+    cd = np.flatnonzero(role == _CONDUCTOR)
     # Nodes are numbered in order of their first point, so names are stable.
     node_of_point, first_point = components(n, pa[cd], pb[cd])
     node_names = [point_names[i] for i in first_point]
 
-    bi = np.flatnonzero(branch)
+    bi = np.flatnonzero(role == _BRANCH)
     br_u, br_v = node_of_point[pa[bi]], node_of_point[pb[bi]]
     branches = [parts[i] for i in bi.tolist()]
     br_r = np.array([p.resistance for p in branches], dtype=float)
@@ -160,7 +189,7 @@ def adjacency(n: int, u: np.ndarray, v: np.ndarray) -> csr_matrix:
     distinct[1:] = key[1:] != key[:-1]
     key = key[distinct]
     indptr = np.searchsorted(key, np.arange(n + 1) * n64).astype(np.int32)
-    return csr_matrix((np.ones(len(key)), (key % max(n, 1)).astype(np.int32), indptr), shape=(n, n))
+    return canonical_csr(np.ones(len(key)), (key % max(n, 1)).astype(np.int32), indptr, (n, n))
 
 
 def components(n: int, u: np.ndarray, v: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -261,11 +290,13 @@ def subtree_sums(forest: Forest, value: np.ndarray) -> np.ndarray:
     depth = forest.depth
     order = np.argsort(-depth, kind="stable")
     d_sorted = depth[order]
-    bounds = np.flatnonzero(np.diff(d_sorted)) + 1
-    for level in np.split(order, bounds):
-        if depth[level[0]] == 0:
+    bounds = (np.flatnonzero(d_sorted[1:] != d_sorted[:-1]) + 1).tolist()
+    parent = forest.parent
+    for lo, hi in zip([0, *bounds], [*bounds, len(order)]):
+        if d_sorted[lo] == 0:
             break
-        np.add.at(total, forest.parent[level], total[level])
+        level = order[lo:hi]
+        np.add.at(total, parent[level], total[level])
     return total
 
 
@@ -289,7 +320,7 @@ def spanning_forest(n: int, u: np.ndarray, v: np.ndarray, weight: np.ndarray, ro
     # The candidates, one per vertex pair in row-major order, are the upper triangle in canonical CSR.
     indptr = np.zeros(n + 1, dtype=np.int32)
     np.cumsum(np.bincount(lo, minlength=n), out=indptr[1:])
-    candidates = csr_matrix((weight[idx], hi.astype(np.int32), indptr), shape=(n, n))
+    candidates = canonical_csr(np.asarray(weight[idx], dtype=float), hi.astype(np.int32), indptr, (n, n))
     mst = csgraph.minimum_spanning_tree(candidates, overwrite=True)
     t_row = np.repeat(np.arange(n), np.diff(mst.indptr))
     tkey = np.minimum(t_row, mst.indices) * n + np.maximum(t_row, mst.indices)

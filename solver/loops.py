@@ -15,10 +15,12 @@ basis of the circuit graph after wires are merged):
   loops because BFS trees are shallow; Kirchhoff 1847, see also
   Deo, *Graph Theory with Applications*, 1974, §4.6).
 
-Both return a :class:`LoopSet`: the loop-branch incidence matrix ``B``
-(rows loops, columns branches, +1 where the loop runs from the branch's
-first terminal to its second) and what is needed to list each loop's parts
-in order lazily.
+Both return a :class:`LoopSet`: the entries of the loop-branch incidence
+matrix B (rows loops, columns branches, +1 where the loop runs from the
+branch's first terminal to its second) and what is needed to list each
+loop's parts in order lazily. B is kept as plain entry arrays, not as a
+scipy matrix: on sketch-sized circuits building and checking a sparse matrix
+costs more than all the sums made over it.
 """
 from __future__ import annotations
 
@@ -26,41 +28,46 @@ from dataclasses import dataclass
 
 import numpy as np
 from scipy.sparse import csr_matrix
-from scipy.sparse import vstack as sp_vstack
 
-from .graph import Forest, Topology, bfs_forest, components, spanning_forest, strong_components
+from .graph import Forest, Topology, bfs_forest, canonical_csr, components, spanning_forest
 
 __all__ = ["LoopSet", "window_loops", "fundamental_loops", "orient_clockwise", "crossing_mask"]
 
 
 @dataclass
 class LoopSet:
-    """Loops as a sparse incidence matrix plus ordered membership.
+    """Loops as the entries of their incidence matrix plus ordered membership.
 
-    ``B`` is (loops × branches). ``loop``, ``branch`` and ``sign`` list each
-    loop's ``(branch, sign)`` pairs in traversal order, sorted by loop.
-    ``clockwise[l]`` is +1 if loop ``l`` runs clockwise on screen, -1
-    anticlockwise, 0 unknown.
+    ``n_loops`` loops; the incidence matrix B (loops × branches) has its
+    non-zero entries in ``b_loop``, ``b_branch`` and ``b_value``, row by row
+    with the branches ascending in each row (the storage order of a
+    canonical CSR matrix, so sums over them add in scipy's order).
+    ``loop``, ``branch`` and ``sign`` list each loop's ``(branch, sign)``
+    pairs in traversal order, sorted by loop. ``clockwise[l]`` is +1 if loop
+    ``l`` runs clockwise on screen, -1 anticlockwise, 0 unknown.
     """
 
     method: str
-    B: csr_matrix
+    n_loops: int
+    b_loop: np.ndarray
+    b_branch: np.ndarray
+    b_value: np.ndarray
     loop: np.ndarray
     branch: np.ndarray
     sign: np.ndarray
     clockwise: np.ndarray
 
-    @property
-    def n_loops(self) -> int:
-        return self.B.shape[0]
+    def matrix(self, nb: int) -> csr_matrix:
+        """B as a scipy CSR matrix over ``nb`` branches (for the sparse solve of large systems)."""
+        indptr = np.zeros(self.n_loops + 1, dtype=np.int32)
+        np.cumsum(np.bincount(self.b_loop, minlength=self.n_loops), out=indptr[1:])
+        return canonical_csr(self.b_value, self.b_branch.astype(np.int32), indptr, (self.n_loops, nb))
 
     def flip(self, mask: np.ndarray) -> None:
         """Reverse the direction of the loops in ``mask`` (their order and signs)."""
         if not mask.any():
             return
-        B = self.B
-        flip_entries = np.repeat(np.where(mask, -1.0, 1.0), np.diff(B.indptr))
-        self.B = csr_matrix((B.data * flip_entries, B.indices, B.indptr), shape=B.shape)
+        self.b_value = self.b_value * np.where(mask, -1.0, 1.0)[self.b_loop]
         sel = mask[self.loop]
         self.sign = np.where(sel, -self.sign, self.sign)
         # reverse traversal order inside flipped loops
@@ -304,11 +311,8 @@ def _faces(topo: Topology, xy: np.ndarray, pa: np.ndarray, pb: np.ndarray, branc
     rt = rank[np.arange(2 * m) ^ 1]
     start_t, deg_t = first[rt], deg[rt]
     nxt = order[start_t + (rt - start_t - 1) % deg_t]
-    # The faces are the cycles of the permutation nxt (the strong components of h -> nxt[h]),
-    # each numbered in order of its lowest half-edge.
-    face, lowest = strong_components(csr_matrix(
-        (np.ones(2 * m), nxt.astype(np.int32), np.arange(2 * m + 1, dtype=np.int32)), shape=(2 * m, 2 * m)))
-    ncomp = len(lowest)
+    # The faces are the cycles of the permutation nxt, each numbered in order of its lowest half-edge.
+    face, ncomp, position = _cycles(nxt)
     cross = xy[origin, 0] * xy[dest, 1] - xy[dest, 0] * xy[origin, 1]
     area = np.bincount(face, weights=cross, minlength=ncomp) / 2.0
     scale = np.bincount(face, weights=np.abs(cross), minlength=ncomp) + 1e-300
@@ -328,7 +332,7 @@ def _faces(topo: Topology, xy: np.ndarray, pa: np.ndarray, pb: np.ndarray, branc
     sel = bounded[face] & is_branch
     rows = face_row[face[sel]]
     sg = np.where(np.arange(2 * m)[sel] & 1, -1, 1)
-    step = _cycle_positions(nxt, face, lowest)[sel]
+    step = position[sel]
     return _from_entries("windows", rows, br[sel], sg, step, len(fb), nb, clockwise=1)
 
 
@@ -345,7 +349,7 @@ def _isolate_shorted(ls: LoopSet, topo: Topology) -> LoopSet:
     sel = shorted[ls.branch]
     if not sel.any():
         return ls
-    nnz = np.diff(ls.B.indptr)
+    nnz = np.bincount(ls.b_loop, minlength=ls.n_loops)
     pure_row = np.full(topo.n_branches, -1, np.int64)
     lone = sel & (nnz[ls.loop] == 1)
     pure_row[ls.branch[lone]] = ls.loop[lone]
@@ -354,17 +358,19 @@ def _isolate_shorted(ls: LoopSet, topo: Topology) -> LoopSet:
         return ls
     keep = ~drop
     loop, branch, sign = ls.loop[keep], ls.branch[keep], ls.sign[keep]
-    B, _ = _incidence(loop, branch, sign, ls.n_loops, topo.n_branches)
-    return LoopSet(ls.method, B, loop, branch, sign, ls.clockwise)
+    b_loop, b_branch, b_value, _ = _incidence(loop, branch, sign, topo.n_branches)
+    return LoopSet(ls.method, ls.n_loops, b_loop, b_branch, b_value, loop, branch, sign, ls.clockwise)
 
 
-def _incidence(loop: np.ndarray, branch: np.ndarray, sign: np.ndarray, n_loops: int,
-               nb: int) -> tuple[csr_matrix, np.ndarray]:
+def _incidence(loop: np.ndarray, branch: np.ndarray, sign: np.ndarray,
+               nb: int) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """The loop-branch incidence matrix of (loop, branch, sign) entries, and which entries it keeps.
 
-    Entries for the same loop and branch are summed and zero sums dropped, so
-    the matrix is in canonical CSR form (each row's columns ascending), as
-    scipy would make it from COO; an entry is kept when its sum is not zero.
+    Returns the matrix's (loop, branch, value) entries and the mask of kept
+    entries. Entries for the same loop and branch are summed and zero sums
+    dropped, leaving the entries in canonical CSR order (row by row, each
+    row's columns ascending), as scipy would store them from COO; an entry
+    is kept when its sum is not zero.
     """
     key = loop * nb + branch
     order = np.argsort(key, kind="stable")
@@ -377,10 +383,7 @@ def _incidence(loop: np.ndarray, branch: np.ndarray, sign: np.ndarray, n_loops: 
     kept[order] = total[group] != 0
     nonzero = total != 0
     rows, cols = np.divmod(skey[new][nonzero], max(nb, 1))
-    indptr = np.zeros(n_loops + 1, dtype=np.int32)
-    np.cumsum(np.bincount(rows, minlength=n_loops), out=indptr[1:])
-    B = csr_matrix((total[nonzero], cols.astype(np.int32), indptr), shape=(n_loops, nb))
-    return B, kept
+    return rows, cols, total[nonzero], kept
 
 
 def _from_entries(method: str, loop: np.ndarray, branch: np.ndarray, sign: np.ndarray,
@@ -390,8 +393,8 @@ def _from_entries(method: str, loop: np.ndarray, branch: np.ndarray, sign: np.nd
     A branch walked both ways in one loop (a dangling branch inside a window)
     cancels; a loop with no branch left (only wires) is dropped.
     """
-    B, kept = _incidence(loop, branch, sign, n_loops, nb)
-    nonempty = np.diff(B.indptr) > 0
+    b_loop, b_branch, b_value, kept = _incidence(loop, branch, sign, nb)
+    nonempty = np.bincount(b_loop, minlength=n_loops) > 0
     new_id = np.cumsum(nonempty) - 1
     keep = kept & nonempty[loop]
     loop, branch, sign, step = new_id[loop[keep]], branch[keep], sign[keep], step[keep]
@@ -403,10 +406,9 @@ def _from_entries(method: str, loop: np.ndarray, branch: np.ndarray, sign: np.nd
     first = np.ones(len(key), bool)
     first[1:] = key[by][1:] != key[by][:-1]
     firstk = np.sort(by[first])
-    if not nonempty.all():
-        B = B[nonempty]
-    return LoopSet(method, B, loop[firstk], branch[firstk], sign[firstk],
-                   np.full(B.shape[0], clockwise, np.int64))
+    n_kept = int(np.count_nonzero(nonempty))
+    return LoopSet(method, n_kept, new_id[b_loop], b_branch, b_value, loop[firstk], branch[firstk], sign[firstk],
+                   np.full(n_kept, clockwise, np.int64))
 
 
 def _concat(sets: list[LoopSet], nb: int) -> LoopSet:
@@ -416,7 +418,10 @@ def _concat(sets: list[LoopSet], nb: int) -> LoopSet:
     offset = np.cumsum([0] + [ls.n_loops for ls in sets[:-1]])
     return LoopSet(
         sets[0].method,
-        csr_matrix(sp_vstack([ls.B for ls in sets])),
+        sum(ls.n_loops for ls in sets),
+        np.concatenate([ls.b_loop + o for ls, o in zip(sets, offset)]),
+        np.concatenate([ls.b_branch for ls in sets]),
+        np.concatenate([ls.b_value for ls in sets]),
         np.concatenate([ls.loop + o for ls, o in zip(sets, offset)]),
         np.concatenate([ls.branch for ls in sets]),
         np.concatenate([ls.sign for ls in sets]),
@@ -508,24 +513,36 @@ def _tree_paths(forest: Forest, tree_branch: np.ndarray, start: np.ndarray, end:
     return (np.concatenate(loops), np.concatenate(branches), np.concatenate(signs), np.concatenate(steps))
 
 
-def _cycle_positions(nxt: np.ndarray, face: np.ndarray, start: np.ndarray) -> np.ndarray:
-    """Position of each element along its cycle of the permutation ``nxt``.
+def _cycles(nxt: np.ndarray) -> tuple[np.ndarray, int, np.ndarray]:
+    """The cycles of the permutation ``nxt``: (cycle of each element, number of cycles, position along it).
 
-    ``face`` numbers the cycles and ``start`` holds the lowest element of
-    each; positions are counted from it, by pointer jumping (O(n log n), no
-    Python loop per element).
+    Cycles are numbered in order of their lowest element and positions
+    counted from it. By pointer jumping (O(n log n), no Python loop per
+    element): after k rounds each element knows the lowest element among its
+    next 2^k and how far ahead it lies; when a round finds nothing lower,
+    that is the lowest of the whole cycle (following the jumps round a cycle
+    the values found can only fall, so they are all equal, and the windows
+    cover the cycle).
     """
     n = len(nxt)
-    nfaces = len(start)
-    is_start = np.zeros(n, bool)
-    is_start[start] = True
-    dist = np.where(is_start, 0, 1).astype(np.int64)   # steps to the cycle's start; the start absorbs
-    ptr = np.where(is_start, np.arange(n), nxt)
-    while not is_start[ptr].all():
-        dist = dist + dist[ptr]
+    low = np.arange(n)
+    ahead = np.zeros(n, np.int64)
+    ptr = nxt
+    span = 1
+    while True:
+        cand = low[ptr]
+        lower = cand < low
+        if not lower.any():
+            break
+        low = np.where(lower, cand, low)
+        ahead = np.where(lower, ahead[ptr] + span, ahead)
         ptr = ptr[ptr]
-    length = np.bincount(face, minlength=nfaces)
-    return (length[face] - dist) % length[face]
+        span *= 2
+    start = low == np.arange(n)
+    face = (np.cumsum(start) - 1)[low]
+    ncycles = int(np.count_nonzero(start))
+    length = np.bincount(face, minlength=ncycles)
+    return face, ncycles, (length[face] - ahead) % length[face]
 
 
 def fundamental_loops(topo: Topology, forest: Forest, tree_branch: np.ndarray) -> LoopSet:
@@ -548,8 +565,8 @@ def fundamental_loops(topo: Topology, forest: Forest, tree_branch: np.ndarray) -
     step = np.concatenate([np.zeros(L, np.int64), step])
     order = np.lexsort((step, loop))
     loop, branch, sign = loop[order], branch[order], sign[order]
-    B, _ = _incidence(loop, branch, sign, L, nb)
-    return LoopSet("fundamental", B, loop, branch, sign, np.zeros(L, np.int64))
+    b_loop, b_branch, b_value, _ = _incidence(loop, branch, sign, nb)
+    return LoopSet("fundamental", L, b_loop, b_branch, b_value, loop, branch, sign, np.zeros(L, np.int64))
 
 
 def orient_clockwise(loops: LoopSet, topo: Topology) -> None:

@@ -11,9 +11,9 @@ so any placement works, supermeshes included:
     [ Z    Bs ] [j]   [ −B·E ]
     [ Bsᵀ  0  ] [w] = [  J   ]
 
-Small systems are solved dense with numpy, large ones with a sparse LU
-(SuperLU via scipy). Assembly is by sparse matrix products, never a Python
-loop per entry.
+Small systems are assembled from the loop matrix's entries and solved dense
+with numpy, large ones assembled by sparse matrix products and solved with a
+sparse LU (SuperLU via scipy); never a Python loop per entry.
 """
 from __future__ import annotations
 
@@ -168,26 +168,14 @@ def _branch_solution(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.nda
     """Loop currents, branch currents and branch voltages, checked against KVL."""
     j, w = _solve_mesh(topo, loops)
     cs = np.flatnonzero(topo.br_cs)
-    entries = _entries(loops.B)
-    loop, branch, sign = entries
+    loop, branch, sign = loops.b_loop, loops.b_branch, loops.b_value
     i_br = np.bincount(branch, weights=sign * j[loop], minlength=topo.n_branches)   # Bᵀ·j
     i_br[cs] = topo.br_j[cs]
     v_br = topo.br_r * i_br + topo.br_e
     v_br[cs] = w
     size = np.abs(topo.br_r * i_br) + np.abs(topo.br_e) + np.abs(np.where(topo.br_cs, v_br, 0.0))
-    _check_kvl(loops, entries, j, v_br, size, topo)
+    _check_kvl(loops, j, v_br, size, topo)
     return j, i_br, v_br
-
-
-def _entries(B: sp.csr_matrix) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
-    """The loop, branch and value of each stored entry of ``B``, in storage order.
-
-    Products with Bᵀ or |B| summed over them with ``np.bincount`` add the
-    terms in the same order as scipy's sparse products, so they give the same
-    bits, without building Bᵀ or |B| (which costs more than the sums on
-    sketch-sized circuits).
-    """
-    return np.repeat(np.arange(B.shape[0]), np.diff(B.indptr)), B.indices, B.data
 
 
 def _solve_mesh(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.ndarray]:
@@ -198,17 +186,18 @@ def _solve_mesh(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.ndarray]
     assembled and solved dense (no sparse bookkeeping for a few dozen loops),
     large ones sparse.
     """
-    B = loops.B
     L = loops.n_loops
     cs = np.flatnonzero(topo.br_cs)
     if L == 0:
         return np.zeros(0), np.zeros(len(cs))
-    e = -(B @ topo.br_e)
+    loop, branch, value = loops.b_loop, loops.b_branch, loops.b_value
+    e = -np.bincount(loop, weights=value * topo.br_e[branch], minlength=L)   # −B·E, summed in scipy's order
     rhs = np.concatenate([e, topo.br_j[cs]])
     n = L + len(cs)
     try:
         if n <= DENSE_LIMIT:
-            Bd = B.toarray()
+            Bd = np.zeros((L, topo.n_branches))
+            Bd[loop, branch] = value
             A = np.zeros((n, n))
             A[:L, :L] = (Bd * topo.br_r) @ Bd.T
             A[:L, L:] = Bd[:, cs]
@@ -219,6 +208,7 @@ def _solve_mesh(topo: Topology, loops: LoopSet) -> tuple[np.ndarray, np.ndarray]
             y = np.linalg.solve(As, bs)
             y = y + np.linalg.solve(As, bs - As @ y)  # one step of iterative refinement
         else:
+            B = loops.matrix(topo.n_branches)
             Z = (B @ sp.diags(topo.br_r) @ B.T).tocsr()
             if len(cs):
                 Bs = B[:, cs]
@@ -265,8 +255,7 @@ def _extreme_parts(topo: Topology) -> list[str]:
     return [topo.part_names[topo.branch_parts[k]] for k in dict.fromkeys(picks)]
 
 
-def _check_kvl(loops: LoopSet, entries: tuple[np.ndarray, np.ndarray, np.ndarray], j: np.ndarray,
-               v_br: np.ndarray, size: np.ndarray, topo: Topology) -> None:
+def _check_kvl(loops: LoopSet, j: np.ndarray, v_br: np.ndarray, size: np.ndarray, topo: Topology) -> None:
     """Raise :class:`IllConditionedError` if any loop's KVL residual is above tolerance.
 
     The residual must be within ``KVL_TOLERANCE`` of the loop's terms as a
@@ -274,12 +263,14 @@ def _check_kvl(loops: LoopSet, entries: tuple[np.ndarray, np.ndarray, np.ndarray
     rounding: 1e-15 of the loop's equation terms (each resistance times the
     loop currents through it, and the largest term in the circuit), which is
     what double precision can resolve when loop currents cancel in a branch.
-    ``entries`` are the loop matrix's, from :func:`_entries`.
+    Products with B, Bᵀ and |B| are ``np.bincount`` sums over the loop
+    matrix's entries, which add the terms in the order scipy's sparse
+    products would.
     """
     if loops.n_loops == 0:
         return
     L = loops.n_loops
-    loop, branch, sign = entries
+    loop, branch, sign = loops.b_loop, loops.b_branch, loops.b_value
     res = np.abs(np.bincount(loop, weights=sign * v_br[branch], minlength=L))   # |B·v|
     mag = np.abs(sign)   # the entries of |B|
     through = np.bincount(branch, weights=mag * np.abs(j)[loop], minlength=topo.n_branches)   # |B|ᵀ·|j|
@@ -289,8 +280,7 @@ def _check_kvl(loops: LoopSet, entries: tuple[np.ndarray, np.ndarray, np.ndarray
     allowed = KVL_TOLERANCE * scale + ROUNDING * equation
     worst = int(np.argmax(res - allowed))
     if res[worst] > allowed[worst]:
-        row = loops.B.getrow(worst)
-        names = [topo.part_names[topo.branch_parts[b]] for b in row.indices]
+        names = [topo.part_names[topo.branch_parts[b]] for b in branch[loop == worst]]
         rel = res[worst] / max(scale[worst], 1e-300)
         raise IllConditionedError(
             "The loop equations are too ill-conditioned to trust: around one loop the "
@@ -341,7 +331,7 @@ def _notes(topo: Topology, loops: LoopSet, i_br: np.ndarray, islands: list[int],
                    f"measured from point {refs} instead.")
         notes.append(Note("reference", msg, ()))
     in_loop = np.zeros(topo.n_branches, bool)
-    in_loop[loops.B.indices] = True
+    in_loop[loops.b_branch] = True
     shorted = topo.br_u == topo.br_v
     for k in np.flatnonzero(~in_loop & ~topo.br_cs):
         notes.append(Note("open", f"{names[bp[k]]} is open: it is not in any closed loop, so it carries no current.",

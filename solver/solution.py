@@ -53,6 +53,14 @@ class Loop:
         return f"L{self.index + 1}"
 
 
+def _new_loop(index: int, parts: tuple[tuple[str, int], ...], orientation: str | None, current: float,
+              kind: str) -> Loop:
+    """``Loop(...)`` without the frozen dataclass's per-field ``object.__setattr__`` calls."""
+    loop = object.__new__(Loop)
+    loop.__dict__.update(index=index, parts=parts, orientation=orientation, current=current, kind=kind)
+    return loop
+
+
 class Solution:
     """Every part's current, drop and absorbed power; every point's potential.
 
@@ -116,17 +124,15 @@ class Solution:
         if ls is None:
             return []
         names = self._topo.part_names
-        bp = self._topo.branch_parts
-        bounds = np.searchsorted(ls.loop, np.arange(ls.n_loops + 1))
+        entry_names = [names[i] for i in self._topo.branch_parts[ls.branch].tolist()]
+        signs = ls.sign.tolist()
+        bounds = np.searchsorted(ls.loop, np.arange(ls.n_loops + 1)).tolist()
         kind = "window" if ls.method == "windows" else "fundamental"
-        out = []
-        for k in range(ls.n_loops):
-            sl = slice(bounds[k], bounds[k + 1])
-            parts = tuple((names[bp[b]], int(s)) for b, s in zip(ls.branch[sl], ls.sign[sl]))
-            cw = ls.clockwise[k]
-            orient = "clockwise" if cw > 0 else "anticlockwise" if cw < 0 else None
-            out.append(Loop(k, parts, orient, float(self.loop_currents[k]), kind))
-        return out
+        make = _new_loop
+        return [make(k, tuple(zip(entry_names[lo:hi], signs[lo:hi])),
+                     "clockwise" if cw > 0 else "anticlockwise" if cw < 0 else None, current, kind)
+                for k, (lo, hi, cw, current) in enumerate(zip(bounds, bounds[1:], ls.clockwise.tolist(),
+                                                              self.loop_currents.tolist()))]
 
     # -- more -----------------------------------------------------------------
     @property
