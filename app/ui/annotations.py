@@ -383,7 +383,7 @@ class ReadingLayer(QGraphicsItem):
         self._bounds = QRectF()
         self._held: list[tuple[float, float, float, float]] | None = None
 
-    MANY = 40  # more boxes than this in one hold: one repaint of the whole layer
+    MANY = 40  # more boxes than this in one hold: one repaint of the box around them
 
     def repaint_box(self, box: tuple[float, float, float, float]) -> None:
         """Paint a mark's scene box (left, top, right, bottom) again (at the end of a ``hold``)."""
@@ -399,8 +399,8 @@ class ReadingLayer(QGraphicsItem):
     def hold(self) -> Iterator[None]:
         """Gather the marks' repaints over a block (a whole solution laid on the drawing).
 
-        Past ``MANY`` boxes the layer is repainted whole: the view would repaint all of
-        its area for that many rectangles anyway, and one request costs less than hundreds.
+        Past ``MANY`` boxes one box around them all is repainted: Qt unites an item's
+        repaint requests into one box anyway, and one request costs less than hundreds.
         """
         if self._held is not None:
             yield
@@ -411,10 +411,10 @@ class ReadingLayer(QGraphicsItem):
         finally:
             boxes, self._held = self._held, None
             if len(boxes) > self.MANY:
-                self.update()
-            else:
-                for left, top, right, bottom in boxes:
-                    self.update(QRectF(left, top, right - left, bottom - top))
+                lefts, tops, rights, bottoms = zip(*boxes)
+                boxes = [(min(lefts), min(tops), max(rights), max(bottoms))]
+            for left, top, right, bottom in boxes:
+                self.update(QRectF(left, top, right - left, bottom - top))
 
     def add(self, mark) -> None:
         """Paint ``mark`` from now on (a part mark, a potential tag or a loop mark)."""
