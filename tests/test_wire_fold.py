@@ -23,6 +23,7 @@ from PySide6.QtWidgets import QApplication  # noqa: E402
 from app.sketch.fileio import load_sketch  # noqa: E402
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
 from app.sketch.netlist import to_circuit  # noqa: E402
+from app.ui.bench_results import detached  # noqa: E402
 from app.ui.edits import Edit, apply_edit, move_target, route, straighten  # noqa: E402
 from solver import solve  # noqa: E402
 
@@ -269,15 +270,6 @@ def move(sketch: Sketch, names: list[str], dx: int, dy: int, *, settle: bool = T
                             new_wires if settle else tuple(new_wires)))
 
 
-def copy(sketch: Sketch) -> Sketch:
-    out = Sketch()
-    for p in sketch.parts:
-        out.add_part(p)
-    for w in sketch.wires:
-        out.add_wire(w)
-    return out
-
-
 @given(parts=st.lists(PART, min_size=1, max_size=4),
        links=st.lists(st.tuples(st.integers(0, 7), st.integers(0, 7), st.booleans()), min_size=1, max_size=5),
        moves=st.lists(MOVE, min_size=1, max_size=4))
@@ -293,7 +285,7 @@ def test_moves_and_their_inverses_join_what_the_stretch_joins_and_leave_no_fold(
     steps += [(ns, -dx, -dy) for ns, dx, dy in reversed(steps)]
     folds_at_start = len(dead_folds(s))
     for ns, dx, dy in steps:
-        bare = copy(s)
+        bare = detached(s)
         move(bare, ns, dx, dy, settle=False)
         move(s, ns, dx, dy)
         assert joined(s) == joined(bare)

@@ -114,7 +114,27 @@ def _rounded(value: float) -> str:
     return f"{value:.2e}"
 
 
-class _PartMark(QGraphicsItem):
+class _LayerPainted(QGraphicsItem):
+    """An item with no contents of its own whose ``layer`` paints it, in its scene box
+    (``_scene_box``: left, top, right, bottom); ``_visible`` mirrors ``isVisible`` (asking
+    Qt costs a call)."""
+
+    layer: "ReadingLayer"
+    _scene_box: tuple[float, float, float, float]
+    _visible: bool
+
+    def _show(self, on: bool) -> None:
+        if on != self._visible:
+            self._visible = on
+            self.setVisible(on)
+            self.repaint()
+
+    def repaint(self) -> None:
+        """Ask the layer to paint the mark's box again."""
+        self.layer.repaint_box(self._scene_box)
+
+
+class _PartMark(_LayerPainted):
     """A mark that belongs to a part and lays itself out beside it.
 
     Its box is the room the widest ordinary text needs, so a new value only
@@ -209,16 +229,6 @@ class _PartMark(QGraphicsItem):
     def set_layer(self, on: bool) -> None:
         self._layer_on = on
         self._show(on and self.value is not None)
-
-    def _show(self, on: bool) -> None:
-        if on != self._visible:
-            self._visible = on
-            self.setVisible(on)
-            self.repaint()
-
-    def repaint(self) -> None:
-        """Ask the layer to paint the mark's box again."""
-        self.layer.repaint_box(self._scene_box)
 
     def _format(self, value: float) -> str:
         return format_value(abs(value), self.UNIT)
@@ -465,7 +475,7 @@ class ReadingLayer(QGraphicsItem):
                 painter.drawLines(lines)
 
 
-class _HungMark(QGraphicsItem):
+class _HungMark(_LayerPainted):
     """A mark of a node or a loop, placed in the scene, painted by a ``ReadingLayer``.
 
     Like the part marks it has no contents of its own; ``move_to``, ``set_shown`` and
@@ -492,14 +502,7 @@ class _HungMark(QGraphicsItem):
             self._reshape()
 
     def set_shown(self, on: bool) -> None:
-        if on != self._visible:
-            self._visible = on
-            self.setVisible(on)
-            self.repaint()
-
-    def repaint(self) -> None:
-        """Ask the layer to paint the mark's box again."""
-        self.layer.repaint_box(self._scene_box)
+        self._show(on)
 
     def _reshape(self, repaint: bool = True) -> None:
         """The mark's text, place or box changed: repaint where it was and where it is

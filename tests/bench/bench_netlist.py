@@ -25,6 +25,7 @@ ROOT = os.path.dirname(os.path.dirname(os.path.dirname(os.path.abspath(__file__)
 sys.path[:0] = [ROOT, os.path.dirname(os.path.abspath(__file__))]   # this checkout's code, then bench_live
 
 from bench_live import grid_sketch  # noqa: E402  (imports PySide6 and the window, as the app does)
+from bench_solve_small import median_ms  # noqa: E402
 
 from app.assess.cautions import assess  # noqa: E402
 from app.sketch import netlist  # noqa: E402
@@ -78,18 +79,6 @@ def median_fresh_ms(fn, fresh: list) -> float:
     for x in fresh:
         t0 = time.perf_counter()
         fn(x)
-        times.append(time.perf_counter() - t0)
-    return statistics.median(times) * 1e3
-
-
-def median_ms(fn, calls: int) -> float:
-    """Median wall time of ``fn()`` in milliseconds, after a few warm-up calls."""
-    for _ in range(5):
-        fn()
-    times = []
-    for _ in range(calls):
-        t0 = time.perf_counter()
-        fn()
         times.append(time.perf_counter() - t0)
     return statistics.median(times) * 1e3
 
