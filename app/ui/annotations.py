@@ -51,18 +51,37 @@ def _arrow_head(x: float, y: float, dx: float, dy: float, size: float = 5.0) -> 
     return QPolygonF([QPointF(x, y), QPointF(bx + nx, by + ny), QPointF(bx - nx, by - ny)])
 
 
-def _static(text: str) -> QStaticText:
-    """``text`` laid out once for drawing (plain text, no markup)."""
-    st = QStaticText(text)
-    st.setTextFormat(Qt.TextFormat.PlainText)
-    return st
+_TEXTS: dict[str, tuple[QStaticText, float]] = {}
+_TEXTS_KEPT = 4096
+
+
+def _text(text: str) -> tuple[QStaticText, float]:
+    """``text`` laid out for drawing (plain text, no markup) and its width in the marks' font.
+
+    Kept by text: the same values recur all over a drawing and from one solve to the next,
+    and measuring a text costs more than the rest of laying out its mark. A static text
+    is only read when drawn, so marks showing the same text share one.
+    """
+    hit = _TEXTS.get(text)
+    if hit is None:
+        if len(_TEXTS) >= _TEXTS_KEPT:
+            _TEXTS.clear()
+        st = QStaticText(text)
+        st.setTextFormat(Qt.TextFormat.PlainText)
+        hit = _TEXTS[text] = (st, _fm().horizontalAdvance(text))
+    return hit
+
+
+def _advance(text: str) -> float:
+    """The width of ``text`` in the marks' font."""
+    return _text(text)[1]
 
 
 def _centred(rect: QRectF, text: str) -> tuple[QPointF, QStaticText]:
     """Where ``text`` goes centred in ``rect`` (as ``drawText`` with AlignCenter), ready to draw."""
-    fm = _fm()
-    return (QPointF(rect.left() + (rect.width() - fm.horizontalAdvance(text)) / 2,
-                    rect.top() + (rect.height() - fm.height()) / 2), _static(text))
+    st, advance = _text(text)
+    return (QPointF(rect.left() + (rect.width() - advance) / 2,
+                    rect.top() + (rect.height() - _fm().height()) / 2), st)
 
 
 _CENTRE = int(Qt.AlignmentFlag.AlignCenter)
@@ -190,7 +209,7 @@ class _PartMark(_LayerPainted):
         text = self.text
         if self._text_rect is None:
             o = self.owner
-            self._advance = _fm().horizontalAdvance(text)
+            self._advance = _advance(text)
             w = self._advance + 2 + (0 if o.horizontal else self.ROOM)
             self._text_rect = o.line_rect(self.LINE, w)
         return self._text_rect
@@ -246,7 +265,7 @@ class _PartMark(_LayerPainted):
             x = box.left()
         else:
             x = box.right() - self._advance
-        return QPointF(x, box.top() + (box.height() - _fm().height()) / 2), _static(text)
+        return QPointF(x, box.top() + (box.height() - _fm().height()) / 2), _text(text)[0]
 
     def relayout(self) -> None:
         """Lay the box out again (the owner moved or turned, or an unusual value came)."""
@@ -269,19 +288,15 @@ class _PartMark(_LayerPainted):
         self.repaint()
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
-        """Nothing: the layer paints the mark (see ``draw``)."""
+        """Nothing: the layer paints the mark (see ``figure``)."""
 
-    def draw(self, painter: QPainter, lines: list[QLineF]) -> None:
-        """Paint the text and arrow head with the layer's painter, in scene coordinates (pen,
-        brush and font are the layer's); the mark's lines go to ``lines``, drawn all at once."""
+    def figure(self) -> tuple:
+        """What the layer draws: (text's top left, static text, lines, arrow head or None) in
+        scene coordinates, laid out once per text and place."""
         fig = self._fig
         if fig is None:
             fig = self._fig = self._lay_out(self.text)
-        at, st, mark_lines, head = fig
-        painter.drawStaticText(at, st)
-        lines.extend(mark_lines)
-        if head is not None:  # one polygon each: a path of all heads spans the drawing and fills slower
-            painter.drawPolygon(head)
+        return fig
 
     def _beside_body(self) -> QRectF:
         """What the mark draws at the part's body, apart from its text (none here)."""
@@ -460,19 +475,39 @@ class ReadingLayer(QGraphicsItem):
         painter.setFont(small_font())
         looks = ((_pen(th.current, 1.4), th.current), (_pen(th.drop, 1.4), th.drop),
                  (_pen(th.potential, 0.9), th.tag), (_pen(th.loop, 1.5, round_cap=True), th.loop))
-        for marks, (pen, brush) in zip(self._marks, looks):
+        text, polygon = painter.drawStaticText, painter.drawPolygon
+        for group, (marks, (pen, brush)) in enumerate(zip(self._marks, looks)):
+            # the figures of the marks in sight; one loop per group, with no call per mark but
+            # the drawing itself (hundreds of marks are drawn on each repaint)
+            figs = [m._fig or m.figure() for m in marks.values()
+                    if m._visible and (b := m._scene_box)[2] >= left and b[0] <= right
+                    and b[3] >= top and b[1] <= bottom]
+            if not figs:
+                continue
             painter.setPen(pen)
             painter.setBrush(brush)
-            lines: list[QLineF] = []
-            for mark in marks.values():
-                if not mark._visible:
-                    continue
-                ml, mt, mr, mb = mark._scene_box
-                if mr < left or ml > right or mb < top or mt > bottom:
-                    continue
-                mark.draw(painter, lines)
-            if lines:
-                painter.drawLines(lines)
+            if group < 2:  # part marks: text, lines, arrow head
+                lines: list[QLineF] = []
+                for at, st, mark_lines, head in figs:
+                    text(at, st)
+                    if mark_lines:
+                        lines += mark_lines
+                    if head is not None:  # one polygon each: a path of all heads fills slower
+                        polygon(head)
+                if lines:
+                    painter.drawLines(lines)
+            elif group == 2:  # potential tags: leader lines under the boxes, then box and text
+                painter.drawLines([f[0] for f in figs])
+                box = painter.drawRoundedRect
+                for _, rect, at, st in figs:
+                    box(rect, 3, 3)
+                    text(at, st)
+            else:  # loop marks: arc, arrow head, text
+                arc = painter.drawArc
+                for rect, start, span, head, at, st in figs:
+                    arc(rect, start, span)
+                    polygon(head)
+                    text(at, st)
 
 
 class _HungMark(_LayerPainted):
@@ -516,22 +551,18 @@ class _HungMark(_LayerPainted):
         if repaint:
             self.repaint()
 
-    def draw(self, painter: QPainter, lines: list[QLineF]) -> None:
-        """Paint the mark with the layer's painter, in scene coordinates (pen, brush and font
-        are its group's); lines may go to ``lines``, drawn all at once."""
+    def figure(self) -> tuple:
+        """What the layer draws (``_lay_out``), in scene coordinates, laid out once per text and place."""
         fig = self._fig
         if fig is None:
             fig = self._fig = self._lay_out()
-        self._draw(painter, lines, fig)
+        return fig
 
     def _lay_out(self) -> tuple:
         raise NotImplementedError
 
-    def _draw(self, painter: QPainter, lines: list[QLineF], fig: tuple) -> None:
-        raise NotImplementedError
-
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
-        """Nothing: the layer paints the mark (see ``draw``)."""
+        """Nothing: the layer paints the mark (see ``figure``)."""
 
 
 class PotentialTag(_HungMark):
@@ -561,7 +592,7 @@ class PotentialTag(_HungMark):
     def rect_at(self, corner: tuple[int, int]) -> QRectF:
         """The tag's box when hung towards ``corner`` ((-1, -1) = up and left)."""
         fm = _fm()
-        w = fm.horizontalAdvance(self.text) + 8
+        w = _advance(self.text) + 8
         h = fm.height() + 2
         x = -w - 6 if corner[0] < 0 else 6
         y = -h - 6 if corner[1] < 0 else 6
@@ -590,12 +621,6 @@ class PotentialTag(_HungMark):
         corner = QPointF(r.right() if self._corner[0] < 0 else r.left(),
                          r.bottom() if self._corner[1] < 0 else r.top())
         return (QLineF(pos, corner), r, *_centred(r, self.text))
-
-    def _draw(self, painter: QPainter, lines: list[QLineF], fig: tuple) -> None:
-        leader, box, at, st = fig
-        painter.drawLine(leader)
-        painter.drawRoundedRect(box, 3, 3)
-        painter.drawStaticText(at, st)
 
 
 class LoopMark(_HungMark):
@@ -644,7 +669,7 @@ class LoopMark(_HungMark):
         """The text's box for a layout, around the arrow at the origin."""
         fm = _fm()
         text = self.name if compact else self.full_text
-        w, h, r = fm.horizontalAdvance(text) + 4, fm.height(), self._radius(compact) + 4
+        w, h, r = _advance(text) + 4, fm.height(), self._radius(compact) + 4
         if side == "below":
             return QRectF(-w / 2, r, w, h)
         if side == "above":
@@ -690,12 +715,6 @@ class LoopMark(_HungMark):
         head = _arrow_head(x + r * math.cos(end) + tx * 2, y - r * math.sin(end) + ty * 2, tx, ty, 6)
         return (QRectF(x - r, y - r, 2 * r, 2 * r), start, span, head,
                 *_centred(self._text_rect.translated(x, y), self.text))
-
-    def _draw(self, painter: QPainter, lines: list[QLineF], fig: tuple) -> None:
-        arc, start, span, head, at, st = fig
-        painter.drawArc(arc, start, span)
-        painter.drawPolygon(head)
-        painter.drawStaticText(at, st)
 
 
 class FaultNote(QGraphicsItem):
