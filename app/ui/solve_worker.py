@@ -96,6 +96,28 @@ def _loop_centre(loop, ends: dict[str, tuple[str, str]], pos: dict[str, tuple[fl
     return sum(p[0] for p in pts[:n]) / n, sum(p[1] for p in pts[:n]) / n
 
 
+_WINDOWS: dict[tuple, tuple[tuple[float, float] | None, list[tuple[float, float]]]] = {}
+_WINDOWS_KEPT = 4096
+
+
+def _window(loop, ends: dict[str, tuple[str, str]], pos: dict[str, tuple[float, float]]
+            ) -> tuple[tuple[float, float] | None, list[tuple[float, float]]]:
+    """``_loop_centre`` of ``loop`` and its corners, kept by the loop's parts and their end points.
+
+    The netlist names each point by its grid position (``netlist.point_name``), so the parts
+    with their signs and end names fix the window; most windows are the same from one solve
+    to the next. The outline list is shared between results: read it, never change it.
+    """
+    key = tuple((name, sign, ends.get(name)) for name, sign in loop.parts)
+    hit = _WINDOWS.get(key)
+    if hit is None:
+        if len(_WINDOWS) >= _WINDOWS_KEPT:
+            _WINDOWS.clear()
+        outline: list[tuple[float, float]] = []
+        hit = _WINDOWS[key] = (_loop_centre(loop, ends, pos, outline), outline)
+    return hit
+
+
 def _inside(p: tuple[float, float], poly: list[tuple[float, float]]) -> bool:
     x, y = p
     inside = False
@@ -142,8 +164,7 @@ def _from_netlist(generation: int, netlist: Netlist, sketch: Sketch | None = Non
     ends = {p.name: (p.a, p.b) for p in circuit.parts}
     pos = circuit.positions
     for loop in sol.loops:
-        outline: list[tuple[float, float]] = []
-        c = _loop_centre(loop, ends, pos, outline)
+        c, outline = _window(loop, ends, pos)
         if c is not None and math.isfinite(loop.current):
             res.loops.append((c, loop.name, loop.current, loop.orientation != "anticlockwise"))
             res.loop_outlines.append(outline)
