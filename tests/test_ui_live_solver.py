@@ -177,3 +177,36 @@ def test_marks_changed_while_too_small_to_read_are_right_once_zoomed_in(qtbot):
     other = view_of(fresh)
     other.centerOn(120, 80)
     assert seen.viewport().grab().toImage() == other.viewport().grab().toImage()
+
+
+def _mark_places(scene) -> list:
+    loops = sorted((round(m.pos().x(), 6), round(m.pos().y(), 6), m.side, m.compact, m.full_text)
+                   for m in scene._loops if m.isVisible())
+    tags = sorted((t.at, t._corner, t.text) for t in scene._tags if t.isVisible())
+    return [loops, tags]
+
+
+def test_marks_an_edit_cannot_wait_for_are_placed_once_drawing_pauses(qtbot, tmp_path):
+    from ui_support import open_window
+    places = []
+    for at_once in (False, True):
+        folder = tmp_path / str(at_once)
+        folder.mkdir()
+        win = open_window(qtbot, folder, lattice(5, 5), name="lattice.lwsk")
+        scene = win.scene
+        # an upright resistor moved down onto the one below it: the drawing has overlapping
+        # parts, so the solver takes a spanning tree's loops instead of the windows, and every
+        # loop mark needs a new place
+        upright = next(p.name for p in win.sketch.parts if p.kind == "resistor" and p.rotation == 90 and p.y == 4)
+        scene.select([upright])
+        if at_once:
+            win.place_now = scene.place_now_up_to = None
+        win.editor.nudge(0, 1)
+        if at_once:
+            assert not scene._waiting
+        else:
+            assert len(scene._waiting) > 0  # the edit placed a few and left the rest for later
+            qtbot.waitUntil(lambda: not scene._waiting, timeout=3000)
+        places.append(_mark_places(scene))
+    # placed later, in the same order: the same places as all at once inside the edit
+    assert places[0] == places[1]

@@ -146,3 +146,24 @@ def test_values_beyond_any_real_part_are_refused_where_they_are_typed(typed, wor
     with pytest.raises(ValueError, match=word):
         read_value(typed, "Ω", "Resistance", False)
     assert read_value("4k7", "Ω", "Resistance", False) == 4700.0  # IEC 60062 code
+
+
+def test_clicking_from_one_resistor_to_another_shows_and_edits_the_second(qtbot, tmp_path):
+    s = Sketch()
+    s.add_part(PlacedPart("resistor", "R1", 0, 0, 0, False, {"resistance": 100.0}))
+    s.add_part(PlacedPart("resistor", "R2", 0, 6, 0, False, {"resistance": 220.0, "power_rating": 0.25}))
+    win = open_window(qtbot, tmp_path, s, name="two.lwsk")
+    win.scene.select(["R1"])
+    first = win.part_panel.field("resistance")
+    assert first.text() == "100 Ω"
+    type_into(qtbot, first, "abc")  # refused: a message in words, nothing changed
+    assert win.part_panel.message.isVisible()
+    win.scene.select(["R2"])
+    field = win.part_panel.field("resistance")
+    assert win.part_panel.name == "R2" and field.text() == "220 Ω"
+    assert not win.part_panel.message.isVisible()  # R1's refusal is not shown against R2
+    assert win.part_panel.field("designator").text() == "R2"
+    assert win.part_panel.combo("power_rating").currentText() == "1/4 W"
+    type_into(qtbot, field, "4k7")
+    assert win.sketch.part("R2").value("resistance") == 4700.0  # IEC 60062 code: 4k7 = 4.7 kΩ
+    assert win.sketch.part("R1").value("resistance") == 100.0

@@ -16,7 +16,7 @@ from PySide6.QtGui import QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF
 from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
 
 from ..units import format_value
-from .items import Z_MARK, Z_NOTE, PartItem, _paint_warning_sign, too_small
+from .items import COVER_TEXT, Z_MARK, Box, box_of, Z_NOTE, PartItem, _paint_warning_sign, too_small
 from .theme import current_theme, small_font
 
 __all__ = ["CurrentMark", "DropMark", "ReadingLayer", "PotentialTag", "LoopMark", "FaultNote", "LAYERS"]
@@ -185,6 +185,8 @@ class _PartMark(_LayerPainted):
         self._owner = parent  # the parent item: asking Qt for it costs a call each time
         self._advance = 0.0  # the width of the text ``_text_rect`` was laid out for
         self._fig: tuple | None = None  # what ``_lay_out`` worked out for the present text and layout
+        self._cover_of: QRectF | None = None  # the text box ``_cover`` was worked out from
+        self._cover: list[Box] = []
         self._visible = False  # what was last asked of setVisible (asking Qt again costs a call)
         self.setVisible(False)
 
@@ -304,6 +306,14 @@ class _PartMark(_LayerPainted):
 
     def boundingRect(self) -> QRectF:
         return self._bounds
+
+    def cover_boxes(self) -> list[Box]:
+        """What marks placed nearby should not hide: the text (kept while it stays)."""
+        rect = self.text_rect
+        if self._cover_of is not rect:
+            self._cover_of = rect
+            self._cover = [box_of(rect.translated(self._owner.pos()), COVER_TEXT)]
+        return self._cover
 
     def drawn_rect(self) -> QRectF:
         """What the mark covers with its present text (its box also holds room for longer ones)."""
@@ -525,6 +535,7 @@ class _HungMark(_LayerPainted):
         self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, True)
         self.layer = layer
         self.active = False
+        self.key: object = None  # what the mark shows (a grid point, a window): see SketchScene._match
         self._visible = True
         self._scene_box = (0.0, 0.0, 0.0, 0.0)
         self._fig: tuple | None = None  # what ``_lay_out`` worked out for the present text and place
@@ -550,6 +561,10 @@ class _HungMark(_LayerPainted):
         self.layer.grow(box)
         if repaint:
             self.repaint()
+
+    def cover_boxes(self) -> list[Box]:
+        """What marks placed nearby should not hide: the whole mark."""
+        return [(*self._scene_box, COVER_TEXT)]
 
     def figure(self) -> tuple:
         """What the layer draws (``_lay_out``), in scene coordinates, laid out once per text and place."""
@@ -644,7 +659,6 @@ class LoopMark(_HungMark):
         self.text = ""
         self.home = QPointF()      # the window's centre, where the mark goes when there is room
         self.outline = QPolygonF()  # the window, in scene coordinates
-        self.source: tuple | None = None  # (centre, corners) in grid units that home and outline came from
         self._key: str | None = None  # ``_rounded`` of the current shown: all its text depends on
         self.side = "below"
         self.compact = False

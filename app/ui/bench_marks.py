@@ -17,7 +17,7 @@ from PySide6.QtWidgets import QGraphicsItem, QGraphicsScene, QStyleOptionGraphic
 
 from ..assess import Caution, display_reading
 from ..units import format_value
-from .items import CACHE, Z_MARK, PartItem, to_scene, too_small
+from .items import CACHE, COVER_TEXT, Z_MARK, Box, PartItem, box_of, to_scene, too_small
 from .theme import current_theme, label_font, small_font
 
 __all__ = ["Badge", "MeterFace", "PointBadge", "BenchMarks", "badge_for"]
@@ -103,7 +103,6 @@ class _OwnedMark(QGraphicsItem):
     """A mark hung on a part, laid out on the side of the body away from the part's label."""
 
     GAP = 3.0
-    KEEP_CLEAR = True  # loop marks and potential tags are placed so as not to cover it
 
     def __init__(self, parent: PartItem) -> None:
         super().__init__(parent)
@@ -117,6 +116,10 @@ class _OwnedMark(QGraphicsItem):
     @property
     def owner(self) -> PartItem:
         return self.parentItem()  # type: ignore[return-value]
+
+    def cover_boxes(self) -> list[Box]:
+        """Loop marks and potential tags are placed so as not to cover it."""
+        return [box_of(self.sceneBoundingRect(), COVER_TEXT)]
 
     def size(self) -> tuple[float, float]:
         raise NotImplementedError

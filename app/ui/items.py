@@ -17,7 +17,7 @@ from .theme import GRID, current_theme, label_font
 from .valuetext import value_line
 
 __all__ = ["too_small", "PartItem", "WireItem", "JunctionLayer", "LooseEnd", "RubberWire", "GridCursor",
-           "value_text", "to_scene", "CACHE", "Z_WIRE", "Z_PART", "Z_MARK", "Z_NOTE"]
+           "value_text", "to_scene", "box_of", "COVER_TEXT", "COVER_BODY", "CACHE", "Z_WIRE", "Z_PART", "Z_MARK", "Z_NOTE"]
 
 Z_WIRE, Z_PART, Z_DOT, Z_MARK, Z_NOTE, Z_TOOL = 1.0, 2.0, 3.0, 4.0, 6.0, 8.0
 INK_WIDTH = 1.7
@@ -29,6 +29,18 @@ CACHE = QGraphicsItem.CacheMode.DeviceCoordinateCache
 
 
 TEXT_LOD = 0.45  # below this scale text is under ~5 px tall: not drawn
+
+# What a loop mark or potential tag placed near an item should not hide, as (left, top,
+# right, bottom, weight) scene boxes (``cover_boxes``): covering a text weighs far more
+# than grazing a symbol's margin or a wire.
+COVER_TEXT = 100.0
+COVER_BODY = 1.0
+Box = tuple[float, float, float, float, float]
+
+
+def box_of(rect: QRectF, weight: float) -> Box:
+    """``rect`` as a weighted cover box."""
+    return rect.left(), rect.top(), rect.right(), rect.bottom(), weight
 
 
 def too_small(painter: QPainter) -> bool:
@@ -122,6 +134,7 @@ class PartItem(QGraphicsItem):
 
     def _layout(self) -> None:
         p = self.part
+        self._covers: list[Box] | None = None
         self.setPos(p.x * GRID, p.y * GRID)
         t = QTransform()
         t.rotate(p.rotation)
@@ -150,6 +163,14 @@ class PartItem(QGraphicsItem):
         w = max(self._fm.horizontalAdvance(s) for s in self.lines) + 2
         r = self.line_rect(0, w)
         return r.united(self.line_rect(len(self.lines) - 1, w))
+
+    def cover_boxes(self) -> list[Box]:
+        """What marks placed nearby should not hide: the symbol (lightly) and its text."""
+        if self._covers is None:
+            self._covers = [box_of(self.mapRectToScene(self.outline.adjusted(4, 4, -4, -4)), COVER_BODY)]
+            if self.lines:
+                self._covers.append(box_of(self.mapRectToScene(self.label_rect), COVER_TEXT))
+        return self._covers
 
     def terminal_points(self) -> list[QPointF]:
         """Terminals in item coordinates."""
@@ -251,6 +272,11 @@ class WireItem(QGraphicsItem):
         self.line = QLineF(0, 0, (w.x2 - w.x1) * GRID, (w.y2 - w.y1) * GRID)
         r = QRectF(self.line.p1(), self.line.p2()).normalized()
         self._bounds = r.adjusted(-self.PICK, -self.PICK, self.PICK, self.PICK)
+        self._covers = [box_of(self.sceneBoundingRect().adjusted(5, 5, -5, -5), COVER_BODY)]
+
+    def cover_boxes(self) -> list[Box]:
+        """What marks placed nearby should not hide: the wire, lightly."""
+        return self._covers
 
     def boundingRect(self) -> QRectF:
         return self._bounds

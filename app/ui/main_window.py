@@ -58,6 +58,8 @@ def _demo_dir() -> Path:
     return Path(__file__).resolve().parents[2] / "demo_circuits"
 
 
+PLACE_NOW = 8  # loop marks and tags placed inside an edit (see SketchScene._place)
+
 # the window's palette follows the application's, which follows the system's scheme
 _PALETTE_EVENTS = (QEvent.Type.PaletteChange, QEvent.Type.ApplicationPaletteChange)
 
@@ -86,6 +88,7 @@ class MainWindow(QMainWindow):
         self._inline: InlineValueEditor | None = None
         self.ask_to_save = self._ask_to_save  # replaced by tests: returns "save", "discard" or "cancel"
         self.tell = self._tell                # replaced by tests: shows a message to the person
+        self.place_now: int | None = PLACE_NOW  # marks placed inside an edit (None: all)
 
         self.view = CanvasView(self)
         self.setCentralWidget(self.view)
@@ -335,6 +338,9 @@ class MainWindow(QMainWindow):
     def _show_result(self, result: Result) -> None:
         self.bench.show_result(result)   # badges first, so loop marks are placed clear of them
         self.scene.show_result(result)
+        # a document's first solution places every mark at once; later ones place a few and
+        # the rest when drawing pauses, so that a drag never waits for a whole new layout
+        self.scene.place_now_up_to = self.place_now
         self.readings_model.set_readings(result.readings if not result.error else {})
         text = result.summary
         extra = result.cautions + result.notes

@@ -134,9 +134,14 @@ class PartPanel(QWidget):
     def show_part(self, name: str | None) -> None:
         """Show the part called ``name`` (None: nothing or several selected)."""
         sketch = self.editor.sketch if self.editor else None
-        if name is not None and name == self.name and sketch is not None and sketch.has_part(name) \
+        if name is not None and self.name is not None and sketch is not None and sketch.has_part(name) \
                 and self._fields and sketch.part(name).kind == self._kind:
-            self._refresh(sketch.part(name))  # same part: update the texts, keep the widgets
+            # a part of the kind shown: keep the widgets, show its texts (building the form
+            # anew takes longer than a frame, and clicking from part to part is common)
+            if name != self.name:
+                self.name = name
+                self.message.setVisible(False)
+            self._refresh(sketch.part(name))
             return
         while self.form.rowCount():
             self.form.removeRow(0)

