@@ -175,7 +175,6 @@ class _PartMark(_LayerPainted):
         self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, True)
         self.layer = layer
         self._scene_box = (0.0, 0.0, 0.0, 0.0)  # the box in scene coordinates: left, top, right, bottom
-        layer.add(self)
         self.value: float | None = None
         self._key = ""  # ``_rounded(value)``: what the text and arrow follow
         self._text = ""
@@ -284,9 +283,7 @@ class _PartMark(_LayerPainted):
             if o.horizontal:
                 slot.adjust(-20, 0, 0, 0)  # the arrow drawn left of the text
             self._bounds = slot.united(self._beside_body()).adjusted(-1, -1, 1, 1)
-        box = self._bounds.translated(o.pos())
-        self._scene_box = (box.left(), box.top(), box.right(), box.bottom())
-        self.layer.grow(box)
+        self.layer.place(self, self._bounds.translated(o.pos()))
         self.repaint()
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
@@ -414,7 +411,10 @@ class ReadingLayer(QGraphicsItem):
         self.setZValue(Z_MARK)
         self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemUsesExtendedStyleOption, True)
         self.setAcceptedMouseButtons(Qt.MouseButton.NoButton)
-        self._marks: tuple[dict[int, QGraphicsItem], ...] = tuple({} for _ in self.GROUPS)
+        # per group: cell -> {id: mark}; and each mark's cell
+        self._cells: tuple[dict[tuple[int, int], dict[int, QGraphicsItem]], ...] = tuple({} for _ in self.GROUPS)
+        self._cell_of: dict[int, tuple[int, int]] = {}
+        self._reach = (0.0, 0.0)  # the widest and the tallest box: how far back from an area to look
         self._bounds = QRectF()
         self._held: list[tuple[float, float, float, float]] | None = None
 
@@ -451,22 +451,47 @@ class ReadingLayer(QGraphicsItem):
             for left, top, right, bottom in boxes:
                 self.update(QRectF(left, top, right - left, bottom - top))
 
-    def add(self, mark) -> None:
-        """Paint ``mark`` from now on (a part mark, a potential tag or a loop mark)."""
-        self._marks[mark.GROUP][id(mark)] = mark
+    CELL = 256.0  # marks are filed by the cell of their box's top left corner, this size
+
+    def place(self, mark, box: QRectF) -> None:
+        """Paint ``mark`` (a part mark, a potential tag or a loop mark) in scene box ``box``
+        from now on; the layer files it by place, so a repaint looks at the marks in sight only."""
+        left, top, right, bottom = box.left(), box.top(), box.right(), box.bottom()
+        mark._scene_box = (left, top, right, bottom)
+        if not self._bounds.contains(box):  # the layer's box only grows: a larger one costs nothing
+            self.prepareGeometryChange()
+            self._bounds = self._bounds.united(box)
+        self._reach = max(self._reach[0], right - left), max(self._reach[1], bottom - top)
+        cell = (math.floor(left / self.CELL), math.floor(top / self.CELL))
+        key = id(mark)
+        old = self._cell_of.get(key)
+        if old != cell:
+            cells = self._cells[mark.GROUP]
+            if old is not None:
+                cells[old].pop(key, None)
+            cells.setdefault(cell, {})[key] = mark
+            self._cell_of[key] = cell
 
     def forget(self, owner: PartItem) -> None:
         """Stop painting the marks of ``owner`` (it leaves the drawing)."""
         for mark in (owner.current_mark, owner.drop_mark):
             if mark is not None:
                 mark.repaint()
-                self._marks[mark.GROUP].pop(id(mark), None)
+                cell = self._cell_of.pop(id(mark), None)
+                if cell is not None:
+                    self._cells[mark.GROUP][cell].pop(id(mark), None)
 
-    def grow(self, rect: QRectF) -> None:
-        """Make room for a mark's box (the layer's box only grows: a larger one costs nothing)."""
-        if not self._bounds.contains(rect):
-            self.prepareGeometryChange()
-            self._bounds = self._bounds.united(rect)
+    def _in_sight(self, group: int, left: float, top: float, right: float, bottom: float) -> list:
+        """The visible marks of ``group`` whose boxes meet the area (from the cells it can reach)."""
+        c = self.CELL
+        x0, y0 = math.floor((left - self._reach[0]) / c), math.floor((top - self._reach[1]) / c)
+        x1, y1 = math.floor(right / c), math.floor(bottom / c)
+        cells = self._cells[group]
+        filed = [cells.get((x, y)) for x in range(x0, x1 + 1) for y in range(y0, y1 + 1)] \
+            if (x1 - x0 + 1) * (y1 - y0 + 1) < len(cells) else list(cells.values())
+        return [m for marks in filed if marks for m in marks.values()
+                if m._visible and (b := m._scene_box)[2] >= left and b[0] <= right
+                and b[3] >= top and b[1] <= bottom]
 
     def boundingRect(self) -> QRectF:
         return self._bounds
@@ -486,12 +511,10 @@ class ReadingLayer(QGraphicsItem):
         looks = ((_pen(th.current, 1.4), th.current), (_pen(th.drop, 1.4), th.drop),
                  (_pen(th.potential, 0.9), th.tag), (_pen(th.loop, 1.5, round_cap=True), th.loop))
         text, polygon = painter.drawStaticText, painter.drawPolygon
-        for group, (marks, (pen, brush)) in enumerate(zip(self._marks, looks)):
+        for group, (pen, brush) in enumerate(looks):
             # the figures of the marks in sight; one loop per group, with no call per mark but
             # the drawing itself (hundreds of marks are drawn on each repaint)
-            figs = [m._fig or m.figure() for m in marks.values()
-                    if m._visible and (b := m._scene_box)[2] >= left and b[0] <= right
-                    and b[3] >= top and b[1] <= bottom]
+            figs = [m._fig or m.figure() for m in self._in_sight(group, left, top, right, bottom)]
             if not figs:
                 continue
             painter.setPen(pen)
@@ -539,7 +562,6 @@ class _HungMark(_LayerPainted):
         self._visible = True
         self._scene_box = (0.0, 0.0, 0.0, 0.0)
         self._fig: tuple | None = None  # what ``_lay_out`` worked out for the present text and place
-        layer.add(self)
 
     def move_to(self, at: QPointF) -> None:
         """Put the mark at scene point ``at``."""
@@ -556,9 +578,7 @@ class _HungMark(_LayerPainted):
         if repaint:
             self.repaint()
         self._fig = None
-        box = self.boundingRect().translated(self.pos())
-        self._scene_box = (box.left(), box.top(), box.right(), box.bottom())
-        self.layer.grow(box)
+        self.layer.place(self, self.boundingRect().translated(self.pos()))
         if repaint:
             self.repaint()
 
