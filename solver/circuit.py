@@ -2,7 +2,9 @@
 
 A ``Circuit`` is plain data. It checks each value as it is added, so a bad
 value is refused with a message naming the part; topology is checked when the
-circuit is solved.
+circuit is solved. ``Circuit._shape_key`` names its topology without its
+values, so a solve can reuse what an earlier solve of the same shape found
+(see :mod:`solver.topocache`).
 """
 from __future__ import annotations
 
@@ -118,6 +120,7 @@ class Circuit:
     def __init__(self) -> None:
         self._parts: dict[str, Part] = {}
         self._positions: dict[str, tuple[float, float]] = {}
+        self._signed_zero = False   # a coordinate is -0.0, which == 0.0 but is not the same number
 
     # -- building -----------------------------------------------------------
     def _add(self, name: str, kind: str, a: str, b: str, resistance: float = 0.0, emf: float = 0.0,
@@ -167,6 +170,8 @@ class Circuit:
             raise InvalidValueError(f"The position of point {point} is not a pair of numbers.", []) from None
         if not (math.isfinite(fx) and math.isfinite(fy)):
             raise InvalidValueError(f"The position of point {point} is not finite.", [])
+        if not (fx and fy) and any(c == 0.0 and math.copysign(1.0, c) < 0 for c in (fx, fy)):
+            self._signed_zero = True
         self._positions[point] = (fx, fy)
 
     # -- reading ------------------------------------------------------------
@@ -195,6 +200,18 @@ class Circuit:
     def positions(self) -> dict[str, tuple[float, float]]:
         """Grid positions of the points that were placed."""
         return dict(self._positions)
+
+    def _shape_key(self) -> tuple | None:
+        """Everything but the values: each part's (kind, name, terminals, switch state) in order, and the positions.
+
+        Two circuits with equal keys have the same topology, names and
+        drawing, so they differ at most in resistances, EMFs and currents.
+        None when a position has a -0.0, which would compare equal to 0.0.
+        """
+        if self._signed_zero:
+            return None
+        return (tuple([(p.kind, p.name, p.a, p.b, p.closed) for p in self._parts.values()]),
+                tuple(self._positions.items()))
 
     def __len__(self) -> int:
         return len(self._parts)

@@ -9,8 +9,10 @@ MultiGraph for reading and display, built only when asked for.
 """
 from __future__ import annotations
 
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from functools import cached_property
+from types import MappingProxyType
 
 import networkx as nx
 import numpy as np
@@ -18,9 +20,10 @@ from scipy.sparse import csgraph, csr_matrix
 
 from .circuit import CELL, CURRENT_SOURCE, RESISTOR, SWITCH, WIRE, Circuit
 
-__all__ = ["Topology", "contract", "Forest", "canonical_csr", "adjacency", "components", "strong_components", "bfs_forest",
-           "spanning_forest", "least_resistance_forest", "component_roots", "accumulate_to_root", "subtree_sums",
-           "multigraph"]
+__all__ = ["Topology", "contract", "Forest", "canonical_csr", "adjacency", "components", "strong_components",
+           "bfs_forest", "bfs_parents", "tree_edges",
+           "mst_candidates", "spanning_forest", "least_resistance_forest", "component_roots", "accumulate_to_root",
+           "subtree_sums", "multigraph"]
 
 
 # What a CSR matrix holds besides its arrays and shape (scipy's print limit), taken from one it built.
@@ -74,20 +77,24 @@ class Topology:
     Points are indexed in ``point_names`` order, parts in circuit order.
     ``node_of_point[p]`` is the node of point ``p``; a node is named after its
     first point. ``br_*`` arrays describe the branches (resistors, cells and
-    current sources). The conductors (wires and closed switches) have a
-    spanning forest over the points, rooted at each node's first point; the
-    islands are the connected pieces of the nodes joined by branches.
+    current sources); of them only ``br_r``, ``br_e`` and ``br_j`` hold the
+    parts' values, everything else follows from the topology alone. Names are
+    tuples and ``point_index`` a read-only mapping, so a topology's parts can
+    be shared between solves of the same circuit shape. The conductors (wires
+    and closed switches) have a spanning forest over the points, rooted at
+    each node's first point; the islands are the connected pieces of the
+    nodes joined by branches.
     """
 
     circuit: Circuit
-    part_names: list[str]
-    part_kind: list[str]
-    point_names: list[str]
-    point_index: dict[str, int]
+    part_names: Sequence[str]
+    part_kind: Sequence[str]
+    point_names: Sequence[str]
+    point_index: Mapping[str, int]
     part_a: np.ndarray          # point index of first terminal, per part
     part_b: np.ndarray
     node_of_point: np.ndarray
-    node_names: list[str]
+    node_names: Sequence[str]
     branch_parts: np.ndarray    # part index of each branch
     br_u: np.ndarray            # node of first terminal
     br_v: np.ndarray            # node of second terminal
@@ -151,14 +158,14 @@ def contract(circuit: Circuit) -> Topology:
     island, island_first = components(len(first_point), br_u, br_v)
     return Topology(
         circuit=circuit,
-        part_names=[p.name for p in parts],
-        part_kind=kinds,
-        point_names=point_names,
-        point_index=point_index,
+        part_names=tuple([p.name for p in parts]),
+        part_kind=tuple(kinds),
+        point_names=tuple(point_names),
+        point_index=MappingProxyType(point_index),
         part_a=pa,
         part_b=pb,
         node_of_point=node_of_point,
-        node_names=node_names,
+        node_names=tuple(node_names),
         branch_parts=bi,
         br_u=br_u,
         br_v=br_v,
@@ -228,30 +235,48 @@ def bfs_forest(n: int, u: np.ndarray, v: np.ndarray, roots: np.ndarray,
 
     Each connected component is rooted at the vertex of ``roots`` that lies
     in it (``roots`` must hold exactly one vertex per component, e.g. from
-    :func:`component_roots`). A virtual super-root joined to every root (the
-    last vertex of the adjacency, so each root meets it after its own
-    neighbours) lets one C-level ``csgraph.breadth_first_order`` call span
-    all components. Self-loops never become tree edges; of parallel edges
-    the one with the smallest ``prefer`` value (e.g. resistance) is taken.
+    :func:`component_roots`). The parents come from the graph alone
+    (:func:`bfs_parents`); of parallel edges the tree takes the one with the
+    smallest ``prefer`` value (e.g. resistance, :func:`tree_edges`).
     """
     if len(u) == 0:   # no edges: each vertex is a root of its own
         return Forest(parent=np.arange(n), edge=np.full(n, -1, dtype=np.int64))
+    parent = bfs_parents(n, u, v, roots)
+    return Forest(parent=parent, edge=tree_edges(n, u, v, parent, prefer))
+
+
+def bfs_parents(n: int, u: np.ndarray, v: np.ndarray, roots: np.ndarray) -> np.ndarray:
+    """The parent of each vertex in the breadth-first forest of :func:`bfs_forest` (roots their own parent).
+
+    A virtual super-root joined to every root (the last vertex of the
+    adjacency, so each root meets it after its own neighbours) lets one
+    C-level ``csgraph.breadth_first_order`` call span all components.
+    ``u`` must not be empty.
+    """
     s = n  # super-root
     full = adjacency(n + 1, np.concatenate([u, np.full(len(roots), s)]), np.concatenate([v, roots]))
     _, pred = csgraph.breadth_first_order(full, s, directed=True, return_predecessors=True)
     parent = pred[:n].copy()
     is_root = (parent == s) | (parent < 0)
     parent[is_root] = np.flatnonzero(is_root)
+    return parent
 
-    # The tree edge of x: the first (by ``prefer``, then index) edge joining x and parent[x].
+
+def tree_edges(n: int, u: np.ndarray, v: np.ndarray, parent: np.ndarray,
+               prefer: np.ndarray | None = None) -> np.ndarray:
+    """The edge joining each vertex to ``parent`` (-1 at roots): of parallel ones the first by ``prefer``, then index.
+
+    Self-loops never become tree edges. Without parallel edges the result
+    does not depend on ``prefer``.
+    """
     key = np.minimum(u, v) * (n + 1) + np.maximum(u, v)
     by = np.lexsort((prefer, key)) if prefer is not None else np.argsort(key, kind="stable")
-    x = np.flatnonzero(~is_root)
+    x = np.flatnonzero(parent != np.arange(n))
     px = parent[x]
     want = np.minimum(x, px) * (n + 1) + np.maximum(x, px)
     edge = np.full(n, -1, dtype=np.int64)
     edge[x] = by[np.searchsorted(key[by], want)]
-    return Forest(parent=parent, edge=edge)
+    return edge
 
 
 def component_roots(label: np.ndarray, lowest: np.ndarray, preferred: np.ndarray) -> np.ndarray:
@@ -300,28 +325,44 @@ def subtree_sums(forest: Forest, value: np.ndarray) -> np.ndarray:
     return total
 
 
-def spanning_forest(n: int, u: np.ndarray, v: np.ndarray, weight: np.ndarray, roots: np.ndarray) -> Forest:
-    """A minimum-weight spanning forest (Kruskal via csgraph), rooted at ``roots``.
+def mst_candidates(n: int, u: np.ndarray, v: np.ndarray,
+                   weight: np.ndarray | None) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """The edges a minimum spanning forest may take: per vertex pair the lightest by ``weight``, then by index.
 
-    ``weight`` must be positive. ``Forest.edge`` indexes the given edges; of
-    parallel edges the lightest is the candidate. ``roots`` holds one vertex
-    per connected component.
+    Returns (lo, hi, idx, indptr): each pair's lower and higher vertex in
+    row-major order, the edge joining it, and the row pointer of the pairs
+    as a CSR upper triangle. Self-loops are left out. Without parallel edges
+    the result does not depend on ``weight``, which may then be None.
     """
     ok = u != v
     lo, hi = np.minimum(u, v)[ok], np.maximum(u, v)[ok]
     idx = np.flatnonzero(ok)
-    order = np.lexsort((weight[idx], hi, lo))   # lightest of each parallel bundle first
+    order = np.lexsort((hi, lo) if weight is None else (weight[idx], hi, lo))   # lightest of each bundle first
     lo, hi, idx = lo[order], hi[order], idx[order]
-    if len(idx) == 0:
-        return bfs_forest(n, u[:0], v[:0], roots)
     first = np.ones(len(idx), bool)
     first[1:] = (lo[1:] != lo[:-1]) | (hi[1:] != hi[:-1])
     lo, hi, idx = lo[first], hi[first], idx[first]
-    # The candidates, one per vertex pair in row-major order, are the upper triangle in canonical CSR.
     indptr = np.zeros(n + 1, dtype=np.int32)
     np.cumsum(np.bincount(lo, minlength=n), out=indptr[1:])
-    candidates = canonical_csr(np.asarray(weight[idx], dtype=float), hi.astype(np.int32), indptr, (n, n))
-    mst = csgraph.minimum_spanning_tree(candidates, overwrite=True)
+    return lo, hi, idx, indptr
+
+
+def spanning_forest(n: int, u: np.ndarray, v: np.ndarray, weight: np.ndarray, roots: np.ndarray,
+                    candidates: tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray] | None = None) -> Forest:
+    """A minimum-weight spanning forest (Kruskal via csgraph), rooted at ``roots``.
+
+    ``weight`` must be positive. ``Forest.edge`` indexes the given edges; of
+    parallel edges the lightest is the candidate (``candidates``: those of
+    :func:`mst_candidates`, if already known). ``roots`` holds one vertex
+    per connected component.
+    """
+    lo, hi, idx, indptr = mst_candidates(n, u, v, weight) if candidates is None else candidates
+    if len(idx) == 0:
+        return bfs_forest(n, u[:0], v[:0], roots)
+    # The candidates, one per vertex pair in row-major order, are the upper triangle in canonical CSR
+    # (of arrays of its own: csgraph may change them in place).
+    matrix = canonical_csr(np.asarray(weight[idx], dtype=float), hi.astype(np.int32), indptr.copy(), (n, n))
+    mst = csgraph.minimum_spanning_tree(matrix, overwrite=True)
     t_row = np.repeat(np.arange(n), np.diff(mst.indptr))
     tkey = np.minimum(t_row, mst.indices) * n + np.maximum(t_row, mst.indices)
     tree = idx[np.searchsorted(lo * n + hi, tkey)]   # lo * n + hi is ascending
@@ -330,19 +371,21 @@ def spanning_forest(n: int, u: np.ndarray, v: np.ndarray, weight: np.ndarray, ro
     return f
 
 
-def least_resistance_forest(topo: Topology, roots: np.ndarray) -> Forest:
+def least_resistance_forest(topo: Topology, roots: np.ndarray,
+                            candidates: tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray] | None = None) -> Forest:
     """A spanning forest of the branches that prefers low resistance.
 
     Used when the loop equations of a shallow tree are ill-conditioned: with
     the high-resistance branches as chords, each appears in one loop only and
     the loop matrix stays diagonally dominant. Current sources are taken last.
     Weights are ranks, so zero resistances need no special case.
+    ``candidates`` are the branches' :func:`mst_candidates`, if already known.
     """
     nb = topo.n_branches
     weight = np.empty(nb)
     weight[np.argsort(topo.br_r, kind="stable")] = np.arange(1, nb + 1)
     weight[topo.br_cs] = nb + 1.0
-    return spanning_forest(topo.n_nodes, topo.br_u, topo.br_v, weight, roots)
+    return spanning_forest(topo.n_nodes, topo.br_u, topo.br_v, weight, roots, candidates)
 
 
 def multigraph(topo: Topology) -> nx.MultiGraph:

@@ -14,6 +14,14 @@ so any placement works, supermeshes included:
 Small systems are assembled from the loop matrix's entries and solved dense
 with numpy, large ones assembled by sparse matrix products and solved with a
 sparse LU (SuperLU via scipy); never a Python loop per entry.
+
+What follows from the topology alone (the nodes, each island's reference,
+the windows of the drawing, the breadth-first tree and its loops) is kept
+for the last few circuit shapes solved (:mod:`solver.topocache`, keyed on
+every part's kind, name, terminals and switch state, the positions and the
+ground), so a re-solve after a value edit skips it. Everything that depends
+on a value is worked out on every solve, so the result is the same, bit for
+bit, whether or not the shape was kept.
 """
 from __future__ import annotations
 
@@ -24,10 +32,10 @@ from scipy.sparse.linalg import splu
 from .checks import check_current_sources, check_ideal_cells
 from .circuit import Circuit
 from .errors import IllConditionedError, UnknownPartError
-from .graph import (Topology, accumulate_to_root, bfs_forest, component_roots, contract,
-                    least_resistance_forest, subtree_sums)
+from .graph import Topology, accumulate_to_root, component_roots, contract, subtree_sums
 from .loops import LoopSet, fundamental_loops, orient_clockwise, window_loops
 from .solution import Note, Solution
+from .topocache import CACHE, CACHE_MAX_PARTS, Shape, ShapeKey
 
 __all__ = ["solve", "DENSE_LIMIT", "KVL_TOLERANCE"]
 
@@ -73,17 +81,27 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
     """
     if not isinstance(circuit, Circuit):
         raise TypeError("solve() takes a Circuit")
-    topo = contract(circuit)
-    if ground is not None and ground not in topo.point_index:
-        raise UnknownPartError(f"There is no point named {ground} to use as ground.", [])
-    check_ideal_cells(topo)
-    check_current_sources(topo)
-
-    n = topo.n_nodes
-    ground_node = topo.node_of_point[topo.point_index[ground]] if ground is not None else -1
-    preferred = _preferred_references(topo, ground_node)
+    key = circuit._shape_key() if len(circuit) <= CACHE_MAX_PARTS and (ground is None or type(ground) is str) \
+        else None
+    if key is not None:
+        key = ShapeKey((key, ground))
+    shape = CACHE.get(key) if key is not None else None
+    if shape is not None:
+        topo = shape.topology(circuit)
+        check_ideal_cells(topo)
+        check_current_sources(topo)
+    else:
+        topo = contract(circuit)
+        if ground is not None and ground not in topo.point_index:
+            raise UnknownPartError(f"There is no point named {ground} to use as ground.", [])
+        check_ideal_cells(topo)
+        check_current_sources(topo)
+        shape = _shape(topo, ground)
+        if key is not None:
+            CACHE.put(key, shape)
+    ground_node = shape.ground_node
+    roots = shape.roots
     label = topo.island
-    roots = component_roots(label, topo.island_first, preferred)
 
     # Windows when the drawing allows, else a shallow tree's loops; if either is
     # too ill-conditioned, the loops of a least-resistance tree. With resistances
@@ -92,18 +110,18 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
     # The potentials are walked along the tree of the fundamental loops tried (see below).
     positive = topo.br_r[topo.br_r > 0]
     wide = len(positive) > 0 and positive.max() > WIDE_SPREAD * positive.min()
-    walk = least_resistance_forest(topo, roots) if wide else bfs_forest(n, topo.br_u, topo.br_v, roots,
-                                                                         prefer=topo.br_r)
-    makers = [lambda: window_loops(topo), lambda: fundamental_loops(topo, walk, walk.edge)]
-    if not wide:
-        makers.append(lambda: _least_resistance_loops(topo, roots))
+    if wide:
+        walk = shape.least_resistance_forest(topo)
+        makers = [lambda: shape.windows, lambda: _oriented(fundamental_loops(topo, walk, walk.edge), topo)]
+    else:
+        walk = shape.bfs_walk(topo)
+        makers = [lambda: shape.windows, lambda: shape.fundamental(topo, walk),
+                  lambda: _oriented(_least_resistance_loops(topo, shape), topo)]
     failure: IllConditionedError | None = None
     for make in makers:
         loops = make()
         if loops is None:
             continue
-        if loops.method == "fundamental" and circuit.positions:
-            orient_clockwise(loops, topo)
         try:
             j, i_br, v_br = _branch_solution(topo, loops)
             break
@@ -118,7 +136,7 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
     # large resistance whose drop is only rounding noise (ideal cells and low
     # resistances fix potentials best).
     k = walk.edge
-    step = np.zeros(n)
+    step = np.zeros(topo.n_nodes)
     has = k >= 0
     step[has] = np.where(topo.br_u[k[has]] == np.flatnonzero(has), v_br[k[has]], -v_br[k[has]])
     potential = accumulate_to_root(walk, step)
@@ -142,13 +160,27 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
             _extreme_parts(topo))
     for arr in (current, voltage, potential):   # subnormal results are rounding residue
         arr[np.abs(arr) < TINY] = 0.0
+    notes = _notes(topo, loops, i_br, shape.own, ground_node)
+    references = [topo.node_names[r] for r in shape.own]
+    return Solution(topo, current, voltage, potential, loops, j, notes, ground, references, label)
+
+
+def _shape(topo: Topology, ground: str | None) -> Shape:
+    """What the solve of ``topo`` with ``ground`` finds from the topology alone (see :mod:`solver.topocache`)."""
+    ground_node = topo.node_of_point[topo.point_index[ground]] if ground is not None else -1
+    roots = component_roots(topo.island, topo.island_first, _preferred_references(topo, ground_node))
     # islands with a branch that are measured from a point of their own (not ground)
     with_branch = np.zeros(len(roots), bool)
-    with_branch[label[topo.br_u]] = True
-    own = sorted(int(r) for r in roots[with_branch] if r != ground_node)
-    notes = _notes(topo, loops, i_br, own, ground_node)
-    references = [topo.node_names[r] for r in own]
-    return Solution(topo, current, voltage, potential, loops, j, notes, ground, references, label)
+    with_branch[topo.island[topo.br_u]] = True
+    own = tuple(sorted(int(r) for r in roots[with_branch] if r != ground_node))
+    return Shape(topo, ground_node, roots, own, window_loops(topo))
+
+
+def _oriented(loops: LoopSet, topo: Topology) -> LoopSet:
+    """Fundamental ``loops`` turned clockwise on screen where the drawing places them."""
+    if topo.circuit.positions:
+        orient_clockwise(loops, topo)
+    return loops
 
 
 def _preferred_references(topo: Topology, ground_node: int) -> np.ndarray:
@@ -159,8 +191,8 @@ def _preferred_references(topo: Topology, ground_node: int) -> np.ndarray:
     return np.array(pref, dtype=np.int64)
 
 
-def _least_resistance_loops(topo: Topology, roots: np.ndarray) -> LoopSet:
-    tree = least_resistance_forest(topo, roots)
+def _least_resistance_loops(topo: Topology, shape: Shape) -> LoopSet:
+    tree = shape.least_resistance_forest(topo)
     return fundamental_loops(topo, tree, tree.edge)
 
 
@@ -315,7 +347,7 @@ def _conductor_currents(topo: Topology, i_br: np.ndarray) -> np.ndarray:
     return out
 
 
-def _notes(topo: Topology, loops: LoopSet, i_br: np.ndarray, islands: list[int], ground_node: int) -> list[Note]:
+def _notes(topo: Topology, loops: LoopSet, i_br: np.ndarray, islands: tuple[int, ...], ground_node: int) -> list[Note]:
     """Open and shorted parts, and the islands (``islands``: their reference nodes) not measured from ground."""
     notes: list[Note] = []
     names = topo.part_names
