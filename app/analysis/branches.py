@@ -13,6 +13,7 @@ import keyword
 import re
 from collections import defaultdict
 from dataclasses import dataclass
+from functools import cached_property
 
 from solver import Circuit, Solution
 
@@ -71,7 +72,7 @@ class Branch:
     def end(self) -> str:
         return self.nodes[-1]
 
-    @property
+    @cached_property
     def part_names(self) -> tuple[str, ...]:
         return tuple(p for p, _ in self.parts)
 
@@ -79,12 +80,14 @@ class Branch:
     def closed_on_itself(self) -> bool:
         return self.nodes[0] == self.nodes[-1]
 
+    @cached_property
+    def _senses(self) -> dict[str, int]:
+        # A part is on its branch once; built once, as the branch is immutable.
+        return dict(self.parts)
+
     def sense(self, part: str) -> int:
         """+1 if ``part``'s first-to-second terminal runs along the branch direction, else −1."""
-        for p, s in self.parts:
-            if p == part:
-                return s
-        raise KeyError(part)
+        return self._senses[part]
 
 
 @dataclass(frozen=True)
@@ -94,40 +97,62 @@ class BranchSet:
     ``node_label`` maps each node that touches a branch to ``n1``, ``n2``, …
     in the solver's node order; ``junctions`` are the nodes where three or
     more branch ends meet, in that order.
+
+    The look-ups below go through indexes built on first use, so that writing
+    every equation of a large circuit stays linear in its size.
     """
 
     branches: tuple[Branch, ...]
     junctions: tuple[str, ...]
     node_label: dict[str, str]
 
+    @cached_property
+    def _by_part(self) -> dict[str, Branch]:
+        return {p: b for b in reversed(self.branches) for p in b.part_names}   # the first branch wins
+
+    @cached_property
+    def _by_current(self) -> dict[str, Branch]:
+        return {b.current: b for b in reversed(self.branches)}
+
+    @cached_property
+    def _ends(self) -> dict[str, list[tuple[Branch, int]]]:
+        out: dict[str, list[tuple[Branch, int]]] = defaultdict(list)
+        for b in self.branches:
+            if not b.closed_on_itself:
+                out[b.end].append((b, 1))
+                out[b.start].append((b, -1))
+        return out
+
+    @cached_property
+    def junction_set(self) -> frozenset[str]:
+        """The junctions, for membership tests."""
+        return frozenset(self.junctions)
+
+    @cached_property
+    def any_tagged(self) -> bool:
+        """Whether a person tagged any branch."""
+        return any(b.tagged for b in self.branches)
+
     def of_part(self, part: str) -> Branch:
         """The branch that ``part`` is on."""
-        for b in self.branches:
-            if part in b.part_names:
-                return b
-        raise KeyError(part)
+        try:
+            return self._by_part[part]
+        except KeyError:
+            raise KeyError(part) from None
 
     def named(self, current: str) -> Branch:
         """The branch whose current is called ``current``."""
-        for b in self.branches:
-            if b.current == current:
-                return b
-        raise KeyError(current)
+        try:
+            return self._by_current[current]
+        except KeyError:
+            raise KeyError(current) from None
 
     def at(self, node: str) -> list[tuple[Branch, int]]:
         """Branches ending at ``node`` with +1 where the current enters it, −1 where it leaves.
 
         A branch that closes on itself at ``node`` enters and leaves, so it is left out.
         """
-        out = []
-        for b in self.branches:
-            if b.closed_on_itself:
-                continue
-            if b.end == node:
-                out.append((b, 1))
-            if b.start == node:
-                out.append((b, -1))
-        return out
+        return list(self._ends.get(node, ()))
 
     def label(self, node: str) -> str:
         return self.node_label.get(node, node)

@@ -208,7 +208,7 @@ def _scaled(t: Term, k: float, right: bool = False) -> str:
 def _kvl_candidates(a: Analysis) -> list[Equation]:
     out = [cycle_equation(a, cycle, label, f"KVL around loop {label}", "branch", loop, combine=False)
            for label, cycle, loop in solver_cycles(a)]
-    seen = {frozenset(p for p, _ in e.parts) for e in out}
+    seen = {frozenset(e.parts) for e in out}   # Equation.parts holds part names
     for cycle in sorted(simple_cycles(a), key=len):
         key = frozenset(p for p, _ in cycle)
         if key in seen:

@@ -87,8 +87,8 @@ def _make(a: Analysis, law: str, form: str, label: str, title: str, lhs: Sequenc
     right = [term_value(t, a.value) for t in rhs]
     residual = sum(left) - sum(right)
     size = sum(abs(x) for x in left + right)
-    units = a.unit
-    numeric = (f"{side_numeric(lhs, a.value, units)} = {side_numeric(rhs, a.value, units)}"
+    units, shown = a.unit, a._cache.setdefault("numbers shown", {})
+    numeric = (f"{side_numeric(lhs, a.value, units, shown)} = {side_numeric(rhs, a.value, units, shown)}"
                f"   (residual {format_value(residual, unit)})")
     sources = sorted({t.part for t in lhs + rhs for n, _ in t.unknowns if a.kind.get(n) == "source voltage"})
     note = ("; ".join(f"V_{s} is the unknown voltage across current source {s}" for s in sources)
@@ -106,10 +106,10 @@ def current_expression(a: Analysis, b: Branch, combine: bool = True) -> tuple[tu
     person's tag is written through those tags by KCL, as on paper
     (``Ia - Ib``); otherwise it is its own name.
     """
-    if b.tagged or not combine or not any(x.tagged for x in a.branches.branches):
+    if b.tagged or not combine or not a.branches.any_tagged:
         return ((b.current, 1),)
     for node in (b.start, b.end):
-        if node not in a.branches.junctions:
+        if node not in a.branches.junction_set:
             continue
         here = a.branches.at(node)
         own = [e for x, e in here if x.index == b.index]
@@ -141,29 +141,38 @@ def _kvl_terms(a: Analysis, cycle: Cycle, combine: bool) -> list[Term]:
 
 
 def _cycle_nodes(a: Analysis, cycle: Cycle) -> list[str]:
-    g = a.solution.graph
-    out = []
-    for part, s in cycle:
-        for u, v, key, data in g.edges(keys=True, data=True):
-            if key == part:
-                first, second = data["terminals"]
-                out.append(first if s > 0 else second)
-                break
-    return out
+    """The node each step of ``cycle`` starts from (parts not in the graph are skipped)."""
+    term = _terminals(a)
+    return [term[part][0 if s > 0 else 1] for part, s in cycle if part in term]
+
+
+def _loops_through(a: Analysis) -> dict[str, dict[int, int]]:
+    """Part → {solver loop index: the loop's sense through the part}, built once per analysis."""
+    through = a._cache.get("loops through")
+    if through is None:
+        through = {}
+        for loop in a.solution.loops:
+            for p, s in loop.parts:
+                through.setdefault(p, {})[loop.index] = s
+        a._cache["loops through"] = through
+    return through
 
 
 def _mesh_terms(a: Analysis, cycle: Cycle) -> tuple[list[Term], list[Term]]:
     lhs, rhs = [], []
-    for loop in a.solution.loops:
-        signs = {p: s for p, s in loop.parts}
+    through = _loops_through(a)
+    # Only the loops through some part of the cycle can give a term; visit them in the solver's order.
+    for k in sorted({k for part, _ in cycle for k in through.get(part, ())}):
+        loop = a.solution.loops[k]
         factors = []
         for part, s in cycle:
-            if part not in signs:
+            signs = through.get(part, {})
+            if k not in signs:
                 continue
             p = a.circuit.part(part)
             sym = part if p.kind == "resistor" else f"r_{part}" if p.kind == "cell" and p.resistance > 0 else None
             if sym is not None:
-                factors.append((sym, s * signs[part]))
+                factors.append((sym, s * signs[k]))
         if not factors:
             continue
         sign = -1 if all(f < 0 for _, f in factors) else 1
@@ -219,11 +228,11 @@ def kcl_equations(a: Analysis) -> list[Equation]:
 def source_equations(a: Analysis) -> list[Equation]:
     """Mesh form: each current source fixes the signed sum of the loop currents through it."""
     out = []
+    through = _loops_through(a)
     for name, kind in a.kind.items():
         if kind != "source current":
             continue
-        lhs = [Term(s, (), ((a.loop_current[loop.index], 1),), None)
-               for loop in a.solution.loops for p, s in loop.parts if p == name]
+        lhs = [Term(s, (), ((a.loop_current[k], 1),), None) for k, s in through.get(name, {}).items()]
         if lhs:
             out.append(_make(a, "source", "mesh", name, f"Current source {name} sets its loop currents",
                              lhs, [Term(1, (), ((name, 1),), name)], [name], (), None, "A"))
@@ -239,7 +248,12 @@ def equations(a: Analysis, form: str = "branch", combine: bool = True) -> list[E
 
 # -- loops of a person's own --------------------------------------------------
 def _terminals(a: Analysis) -> dict[str, tuple[str, str]]:
-    return {key: data["terminals"] for _, _, key, data in a.solution.graph.edges(keys=True, data=True)}
+    """Part → its (first, second) terminal nodes, for the parts in the graph; built once per analysis."""
+    term = a._cache.get("terminals")
+    if term is None:
+        term = {key: data["terminals"] for _, _, key, data in a.solution.graph.edges(keys=True, data=True)}
+        a._cache["terminals"] = term
+    return term
 
 
 def _orientation(a: Analysis, cycle: Cycle) -> str | None:

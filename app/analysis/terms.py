@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import re
 from dataclasses import dataclass
+from functools import lru_cache
 from typing import Callable, Mapping
 
 from app.units import format_value
@@ -77,6 +78,7 @@ def side_text(terms: tuple[Term, ...]) -> str:
     return _side(terms, lambda t: _body(t, str, "*"))
 
 
+@lru_cache(maxsize=4096)   # the same few names come back in every equation of a circuit
 def latex_name(name: str) -> str:
     """A name as a LaTeX symbol with a subscript: ``R2`` → ``R_{2}``, ``V_I1`` → ``V_{\\mathrm{I1}}``."""
     if "_" in name:
@@ -100,11 +102,21 @@ def term_value(t: Term, value: Mapping[str, float]) -> float:
     return t.sign * f * u
 
 
-def side_numeric(terms: tuple[Term, ...], value: Mapping[str, float], unit: Mapping[str, str]) -> str:
-    """One side with the solved numbers in place of the names, in engineering notation."""
+def side_numeric(terms: tuple[Term, ...], value: Mapping[str, float], unit: Mapping[str, str],
+                 shown: dict[str, str] | None = None) -> str:
+    """One side with the solved numbers in place of the names, in engineering notation.
+
+    ``shown``, if given, keeps each name's number as text from call to call, so
+    that writing many equations of one circuit formats each number once.
+    """
+    shown = {} if shown is None else shown
+
     def num(n: str) -> str:  # a negative value in brackets, so no "+ -14 mA"
-        text = format_value(value[n], unit.get(n, ""), 4)
-        return f"({text.replace('-', '−', 1)})" if value[n] < 0 else text
+        text = shown.get(n)
+        if text is None:
+            text = format_value(value[n], unit.get(n, ""), 4)
+            text = shown[n] = f"({text.replace('-', '−', 1)})" if value[n] < 0 else text
+        return text
     return _side(terms, lambda t: _body(t, num, " × ", minus=" − ", plus=" + "), minus="−")
 
 
