@@ -14,7 +14,6 @@ Run:  python tests/bench/bench_netlist.py [--calls 300] [--runs 3]
 from __future__ import annotations
 
 import argparse
-import glob
 import os
 import statistics
 import sys
@@ -24,12 +23,10 @@ os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 ROOT = os.path.dirname(os.path.dirname(os.path.dirname(os.path.abspath(__file__))))
 sys.path[:0] = [ROOT, os.path.dirname(os.path.abspath(__file__))]   # this checkout's code, then bench_live
 
-from bench_live import grid_sketch  # noqa: E402  (imports PySide6 and the window, as the app does)
-from bench_solve_small import median_ms  # noqa: E402
+from bench_solve_small import bench_sketches, median_ms  # noqa: E402  (imports PySide6 and the window)
 
 from app.assess.cautions import assess  # noqa: E402
 from app.sketch import netlist  # noqa: E402
-from app.sketch.fileio import load_sketch  # noqa: E402
 from app.sketch.model import Sketch  # noqa: E402
 from solver import Circuit, solve  # noqa: E402
 
@@ -88,9 +85,7 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--calls", type=int, default=300, help="timed calls per figure (the median is printed)")
     ap.add_argument("--runs", type=int, default=3, help="figures per sketch, to show the spread")
     args = ap.parse_args(argv)
-    sketches: list[tuple[str, Sketch]] = [("grid, 200 parts (bench_live)", grid_sketch(200))]
-    for path in sorted(glob.glob(os.path.join(ROOT, "demo_circuits", "*.lwsk"))):
-        sketches.append((os.path.basename(path), load_sketch(path)))
+    sketches = bench_sketches()
     print("medians in ms, one figure per run; netlist's own = to_circuit - Circuit builders")
     heads = ("to_circuit", "Circuit builders", "netlist own", "assess", "assess, fresh")
     print(f"{'sketch':<30} " + " ".join(f"{h:>18}" for h in heads))

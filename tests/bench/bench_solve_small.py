@@ -40,13 +40,19 @@ def median_ms(fn, calls: int) -> float:
     return statistics.median(times) * 1e3
 
 
+def bench_sketches() -> list[tuple[str, Sketch]]:
+    """The sketches the per-call benches time: bench_live's 200-part grid and every demo."""
+    sketches: list[tuple[str, Sketch]] = [("grid, 200 parts (bench_live)", grid_sketch(200))]
+    for path in sorted(glob.glob(os.path.join(ROOT, "demo_circuits", "*.lwsk"))):
+        sketches.append((os.path.basename(path), load_sketch(path)))
+    return sketches
+
+
 def main(argv: list[str] | None = None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     ap.add_argument("--calls", type=int, default=300, help="timed calls per sketch (the median is printed)")
     args = ap.parse_args(argv)
-    sketches: list[tuple[str, Sketch]] = [("grid, 200 parts (bench_live)", grid_sketch(200))]
-    for path in sorted(glob.glob(os.path.join(ROOT, "demo_circuits", "*.lwsk"))):
-        sketches.append((os.path.basename(path), load_sketch(path)))
+    sketches = bench_sketches()
     print(f"{'sketch':<34} {'parts':>5} {'loops':>5} {'method':>11} {'to_circuit ms':>14} {'solve ms':>9}")
     for name, sketch in sketches:
         net = to_circuit(sketch)

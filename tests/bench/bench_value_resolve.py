@@ -17,7 +17,6 @@ the range of the medians over rounds, and of their ratio, is printed.
 from __future__ import annotations
 
 import argparse
-import glob
 import os
 import statistics
 import sys
@@ -27,9 +26,8 @@ os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 ROOT = os.path.dirname(os.path.dirname(os.path.dirname(os.path.abspath(__file__))))
 sys.path[:0] = [ROOT, os.path.dirname(os.path.abspath(__file__))]   # this checkout's code, then bench_live
 
-from bench_live import grid_sketch  # noqa: E402  (imports PySide6 and the window, as the app does)
+from bench_solve_small import bench_sketches  # noqa: E402  (imports PySide6 and the window, as the app does)
 
-from app.sketch.fileio import load_sketch  # noqa: E402
 from app.sketch.model import Sketch  # noqa: E402
 from app.sketch.netlist import to_circuit  # noqa: E402
 from solver import Circuit, solve  # noqa: E402
@@ -76,9 +74,7 @@ def main(argv: list[str] | None = None) -> int:
     ap.add_argument("--calls", type=int, default=300, help="timed calls per way and round")
     ap.add_argument("--rounds", type=int, default=3, help="rounds of both ways, back to back")
     args = ap.parse_args(argv)
-    sketches: list[tuple[str, Sketch]] = [("grid, 200 parts (bench_live)", grid_sketch(200))]
-    for path in sorted(glob.glob(os.path.join(ROOT, "demo_circuits", "*.lwsk"))):
-        sketches.append((os.path.basename(path), load_sketch(path)))
+    sketches = bench_sketches()
     print(f"{'sketch':<34} {'parts':>5} {'new shape ms':>15} {'values only ms':>15} {'ratio':>11}")
     for name, sketch in sketches:
         ground = to_circuit(sketch).ground
