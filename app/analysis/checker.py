@@ -175,9 +175,18 @@ def _kcl_vector(a: Analysis, form: Linear) -> np.ndarray:
 
 
 def _current_vector(a: Analysis, combo: Linear) -> np.ndarray:
-    """A combination of currents (monomials with one resistance dropped) in independent coordinates."""
-    y, w, c = a.reduce({(u, ()): v for (u, _), v in combo.items()})
-    return np.concatenate([y, w, [c / a.amp_scale]])
+    """A combination of currents (monomials with one resistance dropped) in independent coordinates.
+
+    Kept per analysis (read it, do not change it): a diagnosis asks for the same combinations of
+    every candidate loop again and again.
+    """
+    kept = a._cache.setdefault("current vectors", {})
+    key = tuple(combo.items())
+    vec = kept.get(key)
+    if vec is None:
+        y, w, c = a.reduce({(u, ()): v for (u, _), v in combo.items()})
+        vec = kept[key] = np.concatenate([y, w, [c / a.amp_scale]])
+    return vec
 
 
 def _combination(parsed_form: Linear) -> Linear:
@@ -205,7 +214,14 @@ def _scaled(t: Term, k: float, right: bool = False) -> str:
 
 
 # -- KVL ------------------------------------------------------------------------------
-def _kvl_candidates(a: Analysis) -> list[Equation]:
+def _kvl_candidates(a: Analysis) -> tuple[list[Equation], list[np.ndarray]]:
+    """The loop equations a typed KVL equation is held against, with their vectors (see :func:`_kvl_vector`).
+
+    The same for every check of one analysis, so worked out on the first check and kept.
+    """
+    cached = a._cache.get("kvl candidates")
+    if cached is not None:
+        return cached
     out = [cycle_equation(a, cycle, label, f"KVL around loop {label}", "branch", loop, combine=False)
            for label, cycle, loop in solver_cycles(a)]
     seen = {frozenset(e.parts) for e in out}   # Equation.parts holds part names
@@ -217,7 +233,17 @@ def _kvl_candidates(a: Analysis) -> list[Equation]:
         names = ", ".join(p for p, _ in cycle)
         out.append(cycle_equation(a, cycle, f"the loop through {names}", f"KVL around the loop through {names}",
                                   "branch", None, combine=False))
-    return out
+    cached = a._cache["kvl candidates"] = (out, [_kvl_vector(a, ref.linear) for ref in out])
+    return cached
+
+
+def _kcl_candidates(a: Analysis) -> tuple[list[Equation], list[np.ndarray]]:
+    """The junction equations with their vectors (see :func:`_kcl_vector`), worked out once per analysis."""
+    cached = a._cache.get("kcl candidates")
+    if cached is None:
+        out = kcl_equations(a)
+        cached = a._cache["kcl candidates"] = (out, [_kcl_vector(a, ref.linear) for ref in out])
+    return cached
 
 
 def _kvl_findings(a: Analysis, parsed: ParsedEquation, ref: Equation) -> tuple[float, list[Finding]]:
@@ -363,10 +389,10 @@ def _loop_scale(parsed: ParsedEquation, a: Analysis, k: float) -> str:
     return _describe(k)
 
 
-def _first_multiple(p: np.ndarray, candidates, vector_of):
+def _first_multiple(p: np.ndarray, candidates: list[Equation], vectors: list[np.ndarray]):
     """The first candidate equation whose vector ``p`` is a multiple of, with the factor; else None."""
-    for ref in candidates:
-        k = _ratio(p, vector_of(ref))
+    for ref, v in zip(candidates, vectors):
+        k = _ratio(p, v)
         if k is not None:
             return ref, k
     return None
@@ -377,13 +403,13 @@ def _kvl_match(a: Analysis, parsed: ParsedEquation) -> EquationCheck | None:
     p = _kvl_vector(a, parsed.linear)
     if not np.any(p):
         return EquationCheck(False, "Everything in this equation cancels out (it says 0 = 0 by KCL).", "KVL")
-    candidates = _kvl_candidates(a)
-    found = _first_multiple(p, candidates, lambda ref: _kvl_vector(a, ref.linear))
+    candidates, vectors = _kvl_candidates(a)
+    found = _first_multiple(p, candidates, vectors)
     if found is not None:
         ref, k = found
         return EquationCheck(True, f"Correct: KVL around {ref.label}{_loop_scale(parsed, a, k)}.", "KVL",
                              ref.label, k, ref)
-    rows = np.array([_kvl_vector(a, ref.linear) for ref in candidates if ref.loop is not None])
+    rows = np.array([v for ref, v in zip(candidates, vectors) if ref.loop is not None])
     if len(rows):
         x, *_ = np.linalg.lstsq(rows.T, p, rcond=None)
         if np.allclose(rows.T @ x, p, rtol=0, atol=RTOL * float(np.max(np.abs(p)))):
@@ -397,7 +423,7 @@ def _kvl_match(a: Analysis, parsed: ParsedEquation) -> EquationCheck | None:
 def _kvl_diagnose(a: Analysis, parsed: ParsedEquation) -> EquationCheck:
     """The closest loop equation and what differs from it."""
     best: tuple[int, Equation, float, list[Finding]] | None = None
-    for ref in _kvl_candidates(a):
+    for ref in _kvl_candidates(a)[0]:
         k, found = _kvl_findings(a, parsed, ref)
         if not found:
             found = [Finding("numbers", "the numbers in it do not match this loop's resistances and EMFs.")]
@@ -467,13 +493,13 @@ def _kcl_check(a: Analysis, parsed: ParsedEquation) -> EquationCheck:
     p = _kcl_vector(a, parsed.linear)
     if not np.any(p):
         return EquationCheck(False, "Everything in this equation cancels out (it says 0 = 0).", "KCL")
-    candidates = kcl_equations(a)
-    found = _first_multiple(p, candidates, lambda ref: _kcl_vector(a, ref.linear))
+    candidates, vectors = _kcl_candidates(a)
+    found = _first_multiple(p, candidates, vectors)
     if found is not None:
         ref, k = found
         return EquationCheck(True, f"Correct: KCL at junction {ref.label}{_describe(k)}.", "KCL", ref.label, k, ref)
     if candidates:
-        rows = np.array([_kcl_vector(a, ref.linear) for ref in candidates])
+        rows = np.array(vectors)
         x, *_ = np.linalg.lstsq(rows.T, p, rcond=None)
         if np.allclose(rows.T @ x, p, rtol=0, atol=RTOL * float(np.max(np.abs(p)))):
             used = [ref.label for ref, c in zip(candidates, x) if abs(c) > 1e-9]

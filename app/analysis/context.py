@@ -42,6 +42,11 @@ class Analysis:
     ``value[name]`` its number (solved, for unknowns); ``unit[name]`` its unit;
     ``part_of[name]`` the part it belongs to; ``loop_current[k]`` the name of
     loop ``k``'s current.
+
+    :func:`analyse` fills it in and it is not changed after that, so what is
+    derived from it (units, scales, the elimination, and the tables the
+    equations and the checker look things up in) is worked out on first use
+    and kept in ``_cache``, which keeps every step linear in the circuit's size.
     """
 
     solution: Solution
@@ -53,29 +58,40 @@ class Analysis:
     loop_current: list[str] = field(default_factory=list)
     _cache: dict = field(default_factory=dict, repr=False)
 
+    def _kept(self, key: str, make):
+        """``make()``, worked out on first use and kept in ``_cache``."""
+        if key not in self._cache:
+            self._cache[key] = make()
+        return self._cache[key]
+
     @property
     def unit(self) -> dict[str, str]:
-        return {n: _UNITS[k] for n, k in self.kind.items()}
+        """Each name's unit (worked out once and shared: read it, do not change it)."""
+        return self._kept("units", lambda: {n: _UNITS[k] for n, k in self.kind.items()})
 
     # -- scales for comparing numbers -----------------------------------------
     @property
     def ohm_scale(self) -> float:
         """The largest resistance in the circuit (1 Ω if none)."""
-        return max((v for n, v in self.value.items() if self.kind[n] in ("resistance", "internal resistance")),
-                   default=0.0) or 1.0
+        return self._kept("ohm scale", lambda: max(
+            (v for n, v in self.value.items() if self.kind[n] in ("resistance", "internal resistance")),
+            default=0.0) or 1.0)
 
     @property
     def volt_scale(self) -> float:
         """A natural voltage of the circuit: its EMFs plus source currents through all its resistance."""
-        emf = sum(abs(v) for n, v in self.value.items() if self.kind[n] == "emf")
-        amps = sum(abs(v) for n, v in self.value.items() if self.kind[n] == "source current")
-        ohms = sum(v for n, v in self.value.items() if self.kind[n] in ("resistance", "internal resistance"))
-        return (emf + amps * ohms) or 1.0
+        def make() -> float:
+            emf = sum(abs(v) for n, v in self.value.items() if self.kind[n] == "emf")
+            amps = sum(abs(v) for n, v in self.value.items() if self.kind[n] == "source current")
+            ohms = sum(v for n, v in self.value.items() if self.kind[n] in ("resistance", "internal resistance"))
+            return (emf + amps * ohms) or 1.0
+        return self._kept("volt scale", make)
 
     @property
     def amp_scale(self) -> float:
         """A natural current of the circuit."""
-        return max((abs(b.value) for b in self.branches.branches), default=0.0) or 1.0
+        return self._kept("amp scale",
+                          lambda: max((abs(b.value) for b in self.branches.branches), default=0.0) or 1.0)
 
     # -- the loop space ---------------------------------------------------------
     def _column(self, part: str) -> np.ndarray:
@@ -90,7 +106,13 @@ class Analysis:
         return cols.get(part, np.zeros(len(self.solution.loops))).copy()
 
     def _sources(self) -> list[str]:
-        return [n for n, k in self.kind.items() if k == "source current"]
+        """The current sources, in the order of their names in ``kind``."""
+        return self._kept("sources", lambda: [n for n, k in self.kind.items() if k == "source current"])
+
+    def _positions(self) -> tuple[dict[str, int], dict[str, int]]:
+        """Where each loop current and each current source sits in its coordinate vector."""
+        return self._kept("positions", lambda: ({n: i for i, n in enumerate(self.loop_current)},
+                                                {s: i for i, s in enumerate(self._sources())}))
 
     def loop_vector(self, unknown: str) -> tuple[np.ndarray, np.ndarray]:
         """``unknown`` as (coefficients over the loop currents, over the source voltages)."""
@@ -99,9 +121,9 @@ class Analysis:
         j, w = np.zeros(n_loops), np.zeros(len(sources))
         kind = self.kind[unknown]
         if kind == "loop current":
-            j[self.loop_current.index(unknown)] = 1.0
+            j[self._positions()[0][unknown]] = 1.0
         elif kind == "source voltage":
-            w[sources.index(self.part_of[unknown])] = 1.0
+            w[self._positions()[1][self.part_of[unknown]]] = 1.0
         elif kind == "source current":
             j = self._column(unknown)
         else:
@@ -111,9 +133,7 @@ class Analysis:
 
     def _elimination(self) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         """Pivot loops, free loops, M and c0 with j[pivot] = c0 − M·j[free] from the source rows."""
-        if "elimination" not in self._cache:
-            self._cache["elimination"] = self._eliminate()
-        return self._cache["elimination"]
+        return self._kept("elimination", self._eliminate)
 
     def _eliminate(self) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
         n_loops = len(self.solution.loops)

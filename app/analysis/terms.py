@@ -39,15 +39,15 @@ class Term:
 
 def _sum_text(items: Signed, name: Callable[[str], str], minus: str = " - ", plus: str = " + ",
               lpar: str = "(", rpar: str = ")") -> str:
-    out = ""
-    for k, (n, s) in enumerate(items):
-        if k == 0:
-            out = ("-" if s < 0 else "") + name(n)
-        else:
-            out += (minus if s < 0 else plus) + name(n)
-    if len(items) > 1:
-        out = lpar + out + rpar
-    return out
+    """A signed sum of names, in brackets when it has more than one."""
+    if len(items) == 1:   # the usual case: a single name
+        n, s = items[0]
+        return "-" + name(n) if s < 0 else name(n)
+    if not items:
+        return ""
+    n, s = items[0]
+    head = "-" + name(n) if s < 0 else name(n)
+    return lpar + head + "".join((minus if s < 0 else plus) + name(n) for n, s in items[1:]) + rpar
 
 
 def _body(t: Term, name: Callable[[str], str], times: str, **kw: str) -> str:
@@ -63,14 +63,9 @@ def _body(t: Term, name: Callable[[str], str], times: str, **kw: str) -> str:
 def _side(terms: tuple[Term, ...], body: Callable[[Term], str], minus: str = "-") -> str:
     if not terms:
         return "0"
-    out = ""
-    for k, t in enumerate(terms):
-        b = body(t)
-        if k == 0:
-            out = (minus if t.sign < 0 else "") + b
-        else:
-            out += f" {minus if t.sign < 0 else '+'} {b}"
-    return out
+    first = terms[0]
+    return ((minus if first.sign < 0 else "") + body(first)
+            + "".join(f" {minus if t.sign < 0 else '+'} {body(t)}" for t in terms[1:]))
 
 
 def side_text(terms: tuple[Term, ...]) -> str:
