@@ -100,7 +100,6 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
         if key is not None:
             CACHE.put(key, shape)
     ground_node = shape.ground_node
-    roots = shape.roots
     label = topo.island
 
     # Windows when the drawing allows, else a shallow tree's loops; if either is
