@@ -108,12 +108,17 @@ def test_a_fuse_too_small_is_flagged_on_the_canvas_and_blowing_it_stops_the_curr
     assert win.bench.marks.badge_text("F1").startswith("OVER")
 
 
-def test_picking_a_caution_selects_its_part(qtbot, tmp_path):
+def fused_supply(qtbot, tmp_path):
+    """The supply with a 2.5 A fuse in its gap, open: the window, its cautions list and the fuse's row."""
     s = supply_with_a_gap()
     s.add_part(PlacedPart("fuse", "F1", 0, 0, 0, False, {"rating": 2.5}))
     win = open_window(qtbot, tmp_path, s)
     lst = win.bench.panel.list
-    row = next(i for i in range(lst.count()) if "F1 carries" in lst.item(i).text())
+    return win, lst, next(i for i in range(lst.count()) if "F1 carries" in lst.item(i).text())
+
+
+def test_picking_a_caution_selects_its_part(qtbot, tmp_path):
+    win, lst, row = fused_supply(qtbot, tmp_path)
     rect = lst.visualItemRect(lst.item(row))
     qtbot.mouseClick(lst.viewport(), Qt.MouseButton.LeftButton, pos=rect.center())
     assert win.scene.selected_parts() == ["F1"]
@@ -122,11 +127,7 @@ def test_picking_a_caution_selects_its_part(qtbot, tmp_path):
 
 
 def test_the_cautions_list_keeps_its_place_while_edits_leave_it_unchanged(qtbot, tmp_path):
-    s = supply_with_a_gap()
-    s.add_part(PlacedPart("fuse", "F1", 0, 0, 0, False, {"rating": 2.5}))
-    win = open_window(qtbot, tmp_path, s)
-    lst = win.bench.panel.list
-    row = next(i for i in range(lst.count()) if "F1 carries" in lst.item(i).text())
+    win, lst, row = fused_supply(qtbot, tmp_path)
     lst.setCurrentRow(row)
     # R3 sits straight across the ideal cell: 24 -> 30 ohm changes the cell's current, not the fuse's
     win.editor.set_values("R3", {"resistance": 30.0})

@@ -152,7 +152,7 @@ def test_clicking_from_one_resistor_to_another_shows_and_edits_the_second(qtbot,
     s = Sketch()
     s.add_part(PlacedPart("resistor", "R1", 0, 0, 0, False, {"resistance": 100.0}))
     s.add_part(PlacedPart("resistor", "R2", 0, 6, 0, False, {"resistance": 220.0, "power_rating": 0.25}))
-    win = open_window(qtbot, tmp_path, s, name="two.lwsk")
+    win = open_window(qtbot, tmp_path, s, name="two.lwsk", active=True)
     win.scene.select(["R1"])
     first = win.part_panel.field("resistance")
     assert first.text() == "100 Ω"
@@ -167,3 +167,14 @@ def test_clicking_from_one_resistor_to_another_shows_and_edits_the_second(qtbot,
     type_into(qtbot, field, "4k7")
     assert win.sketch.part("R2").value("resistance") == 4700.0  # IEC 60062 code: 4k7 = 4.7 kΩ
     assert win.sketch.part("R1").value("resistance") == 100.0
+    # a field with the focus when the selection moves on shows the new part, and leaving it
+    # changes nothing (it must not carry one part's value over to the other)
+    win.scene.select(["R1"])
+    field.setFocus()
+    QCoreApplication.processEvents()
+    win.scene.select(["R2"])
+    assert field.hasFocus() and field.text() == "4.70 kΩ"
+    win.view.setFocus()
+    QCoreApplication.processEvents()
+    assert win.sketch.part("R1").value("resistance") == 100.0
+    assert win.sketch.part("R2").value("resistance") == 4700.0

@@ -138,9 +138,24 @@ class _LayerPainted(QGraphicsItem):
     (``_scene_box``: left, top, right, bottom); ``_visible`` mirrors ``isVisible`` (asking
     Qt costs a call)."""
 
+    GROUP: int  # which of the layer's pens and brushes draws it (``ReadingLayer.GROUPS``)
     layer: "ReadingLayer"
     _scene_box: tuple[float, float, float, float]
     _visible: bool
+    _fig: tuple | None  # what ``_lay_out`` worked out for the present text and place
+
+    def figure(self) -> tuple:
+        """What the layer draws (``_lay_out``), in scene coordinates, laid out once per text and place."""
+        fig = self._fig
+        if fig is None:
+            fig = self._fig = self._lay_out()
+        return fig
+
+    def _lay_out(self) -> tuple:
+        raise NotImplementedError
+
+    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
+        """Nothing: the layer paints the mark (see ``figure``)."""
 
     def _show(self, on: bool) -> None:
         if on != self._visible:
@@ -167,7 +182,6 @@ class _PartMark(_LayerPainted):
     LINE = 0
     ROOM = 0  # space kept beside the text for an arrow on upright parts
     UNIT = ""
-    GROUP = 0  # which of the layer's pens draws it (``ReadingLayer.GROUPS``)
 
     def __init__(self, parent: PartItem, layer: ReadingLayer) -> None:
         super().__init__(parent)
@@ -253,10 +267,6 @@ class _PartMark(_LayerPainted):
     def _format(self, value: float) -> str:
         return format_value(abs(value), self.UNIT)
 
-    def _lay_out(self, text: str) -> tuple:
-        """(text's top left, static text, lines, arrow head or None) in scene coordinates."""
-        raise NotImplementedError
-
     def _text_at(self, box: QRectF, align: int, text: str) -> tuple[QPointF, QStaticText]:
         """Where ``text`` goes in ``box`` with ``align`` (as ``drawText`` would put it), and the
         text ready to draw: a static text is laid out once, not on every paint."""
@@ -285,17 +295,6 @@ class _PartMark(_LayerPainted):
             self._bounds = slot.united(self._beside_body()).adjusted(-1, -1, 1, 1)
         self.layer.place(self, self._bounds.translated(o.pos()))
         self.repaint()
-
-    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
-        """Nothing: the layer paints the mark (see ``figure``)."""
-
-    def figure(self) -> tuple:
-        """What the layer draws: (text's top left, static text, lines, arrow head or None) in
-        scene coordinates, laid out once per text and place."""
-        fig = self._fig
-        if fig is None:
-            fig = self._fig = self._lay_out(self.text)
-        return fig
 
     def _beside_body(self) -> QRectF:
         """What the mark draws at the part's body, apart from its text (none here)."""
@@ -332,8 +331,9 @@ class CurrentMark(_PartMark):
     UNIT = "A"
     GROUP = 0
 
-    def _lay_out(self, text: str) -> tuple:
-        o = self.owner
+    def _lay_out(self) -> tuple:
+        """(text's top left, static text, lines, arrow head or None) in scene coordinates."""
+        o, text = self.owner, self.text
         r = self.text_rect.translated(o.pos())
         box = r
         if not o.horizontal:
@@ -373,8 +373,9 @@ class DropMark(_PartMark):
         ends.translate(0, side) if o.horizontal else ends.translate(side, 0)
         return ends.adjusted(-5, -5, 5, 5)
 
-    def _lay_out(self, text: str) -> tuple:
-        o = self.owner
+    def _lay_out(self) -> tuple:
+        """(text's top left, static text, +/- lines, None) in scene coordinates."""
+        o, text = self.owner, self.text
         pos = o.pos()
         at, st = self._text_at(self.text_rect.translated(pos), _align(o), text)
         if self.value == 0:
@@ -399,9 +400,9 @@ class ReadingLayer(QGraphicsItem):
     Each mark stays an item of its own (hit tests, layout, visibility) with no contents:
     hundreds of tiny items each cost a call into Python, a cached picture and a painter of
     their own on every change, where one item drawing them all costs little more than the
-    texts and lines themselves. Marks ask for their box to be repainted (``update(rect)``);
-    the layer draws only those in the exposed area, group by group (``GROUPS``), each
-    group with one pen and brush.
+    texts and lines themselves. Marks ask for their box to be repainted (``repaint_box``);
+    the layer files them by place (``CELL``) and draws those in the exposed area, group by
+    group (``GROUPS``), each group with one pen and brush.
     """
 
     GROUPS = ("currents", "drops", "potentials", "loops")
@@ -550,8 +551,6 @@ class _HungMark(_LayerPainted):
     ``_reshape`` keep its scene box (what the layer repaints) in step with it.
     """
 
-    GROUP = 0
-
     def __init__(self, layer: ReadingLayer) -> None:
         super().__init__()
         self.setZValue(Z_MARK)
@@ -586,18 +585,6 @@ class _HungMark(_LayerPainted):
         """What marks placed nearby should not hide: the whole mark."""
         return [(*self._scene_box, COVER_TEXT)]
 
-    def figure(self) -> tuple:
-        """What the layer draws (``_lay_out``), in scene coordinates, laid out once per text and place."""
-        fig = self._fig
-        if fig is None:
-            fig = self._fig = self._lay_out()
-        return fig
-
-    def _lay_out(self) -> tuple:
-        raise NotImplementedError
-
-    def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
-        """Nothing: the layer paints the mark (see ``figure``)."""
 
 
 class PotentialTag(_HungMark):

@@ -138,10 +138,11 @@ class PartPanel(QWidget):
                 and self._fields and sketch.part(name).kind == self._kind:
             # a part of the kind shown: keep the widgets, show its texts (building the form
             # anew takes longer than a frame, and clicking from part to part is common)
-            if name != self.name:
+            same = name == self.name
+            if not same:
                 self.name = name
                 self.message.setVisible(False)
-            self._refresh(sketch.part(name))
+            self._refresh(sketch.part(name), keep_typing=same)
             return
         while self.form.rowCount():
             self.form.removeRow(0)
@@ -234,19 +235,21 @@ class PartPanel(QWidget):
         self.form.addRow("Power rating (W)", combo)
         self._combos["power_rating"] = combo
 
-    def _refresh(self, part) -> None:
+    def _refresh(self, part, keep_typing: bool = True) -> None:
+        """Show ``part``'s values; ``keep_typing`` leaves a field being typed in as it is (the
+        same part changed under it), else every field shows ``part`` (another part shown)."""
         spec = kind_spec(part.kind)
         for f in spec.value_fields:
             edit = self._fields.get(f.key)
-            if edit is not None and not edit.hasFocus():
+            if edit is not None and not (keep_typing and edit.hasFocus()):
                 edit.setText(field_edit_text(part.value(f.key), f))
         des = self._fields.get("designator")
-        if des is not None and not des.hasFocus():
+        if des is not None and not (keep_typing and des.hasFocus()):
             des.setText(part.name)
         for key, combo in self._combos.items():
             combo.blockSignals(True)
             if key == "power_rating":
-                if not combo.lineEdit().hasFocus():
+                if not (keep_typing and combo.lineEdit().hasFocus()):
                     combo.setEditText(_rating_text(part.value("power_rating")))
             else:
                 combo.setCurrentIndex(max(combo.findData(part.choice(key)), 0))

@@ -348,14 +348,14 @@ class SketchScene(QGraphicsScene):
             jobs += [(self._place_loop, item, item.key) for item in new_homes]
         self._place(jobs)
 
-    def _place(self, jobs: list) -> None:
-        """Place marks: all at once, or, when ``place_now_up_to`` is set, that many now and the
+    def _place(self, jobs: list, all_now: bool = False) -> None:
+        """Place marks: all at once (``all_now``, or no ``place_now_up_to``), or that many now and the
         rest once the drawing has paused for ``PLACE_AFTER_MS`` (marks left waiting by an
         earlier edit go first). Placing a mark is a search over its surroundings; an edit that
         changes how the loops are chosen moves every loop mark, and the drawing must not wait
         for all of them while a part is being dragged."""
         jobs = self._waiting + jobs
-        limit = len(jobs) if self.place_now_up_to is None else self.place_now_up_to
+        limit = len(jobs) if all_now or self.place_now_up_to is None else self.place_now_up_to
         self._waiting = jobs[limit:]
         for place, item, key in jobs[:limit]:
             if item.active and item.key == key:  # still showing what it was to be placed for
@@ -367,12 +367,8 @@ class SketchScene(QGraphicsScene):
 
     def settle_marks(self) -> None:
         """Place every mark still waiting for a place (before a picture is taken, say)."""
-        limit, self.place_now_up_to = self.place_now_up_to, None
-        try:
-            with self._readings.hold():
-                self._place([])
-        finally:
-            self.place_now_up_to = limit
+        with self._readings.hold():
+            self._place([], all_now=True)
 
     def _match(self, pool: list, keys: list, make) -> list[tuple]:
         """An item of ``pool`` for each of ``keys`` (a tag's grid point, a loop's window), as
@@ -476,23 +472,6 @@ class SketchScene(QGraphicsScene):
             cls._candidates_cache = cached
         return cached
 
-    def _centre_is_free(self, mark: LoopMark, box: QRectF | None) -> bool:
-        """Put ``mark`` at its window's centre in the first layout if that covers nothing: the
-        first candidate in preference order, so the full search would choose it too (most
-        windows have room in the middle, and this costs one small lookup)."""
-        side, compact = self._LAYOUTS[0]
-        first = mark.rect_at(side, compact).translated(mark.home)
-        if box is not None and not (box.contains(first) and
-                                    mark.outline.containsPoint(mark.home, Qt.FillRule.OddEvenFill)):
-            return False
-        x0, y0, x1, y1 = first.left(), first.top(), first.right(), first.bottom()
-        for left, top, right, bottom, _ in self._cover_boxes(first, mark):
-            if min(right, x1) > max(left, x0) and min(bottom, y1) > max(top, y0):
-                return False
-        mark.move_to(mark.home)
-        mark.set_layout(side, compact)
-        return True
-
     @staticmethod
     def _overlap(lo: np.ndarray, hi: np.ndarray, cover_lo: np.ndarray, cover_hi: np.ndarray) -> np.ndarray:
         """Length by which each span [lo, hi] overlaps each cover span (rows: spans, columns: covers)."""
@@ -510,8 +489,6 @@ class SketchScene(QGraphicsScene):
         """
         outlined = not mark.outline.isEmpty()
         area = mark.outline.boundingRect() if outlined else QRectF(mark.home, mark.home)
-        if self._centre_is_free(mark, area if outlined else None):
-            return
         # what a candidate can reach: the window's box, and no further than the farthest step
         # plus the mark's own reach from the centre (a large window need not be searched whole)
         reach = QRectF(mark.home.x() - self.REACH, mark.home.y() - self.REACH, 2 * self.REACH, 2 * self.REACH)
