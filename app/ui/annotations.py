@@ -44,11 +44,80 @@ def _unit_xy(dx: float, dy: float) -> tuple[float, float]:
     return dx / length, dy / length
 
 
-def _arrow_head(x: float, y: float, dx: float, dy: float, size: float = 5.0) -> QPolygonF:
-    """A filled arrow head with its tip at (x, y) pointing along the unit vector (dx, dy)."""
+def _outlined(points: list[tuple[float, float]], width: float) -> QPolygonF:
+    """The area a convex polygon covers when filled and outlined by a pen of ``width``
+    (Qt's default bevel join): each corner becomes two, its sides pushed out by half the width.
+
+    Filling this with no pen looks as the filled and stroked polygon does, at a fraction of
+    the cost: stroking makes the raster engine build and fill an outline path on every draw.
+    """
+    n, h = len(points), width / 2
+    cx, cy = sum(p[0] for p in points) / n, sum(p[1] for p in points) / n
+    normals = []
+    for (x0, y0), (x1, y1) in zip(points, points[1:] + points[:1]):
+        nx, ny = _unit_xy(y1 - y0, x0 - x1)
+        if nx * ((x0 + x1) / 2 - cx) + ny * ((y0 + y1) / 2 - cy) < 0:  # point it away from the inside
+            nx, ny = -nx, -ny
+        normals.append((nx * h, ny * h))
+    out = []
+    for (x, y), (ax, ay), (bx, by) in zip(points, normals[-1:] + normals[:-1], normals):
+        out += [QPointF(x + ax, y + ay), QPointF(x + bx, y + by)]
+    return QPolygonF(out)
+
+
+def _head_points(x: float, y: float, dx: float, dy: float, size: float) -> list[tuple[float, float]]:
+    """An arrow head's corners: its tip at (x, y) pointing along the unit vector (dx, dy)."""
     bx, by = x - dx * size, y - dy * size
     nx, ny = -dy * size * 0.6, dx * size * 0.6
-    return QPolygonF([QPointF(x, y), QPointF(bx + nx, by + ny), QPointF(bx - nx, by - ny)])
+    return [(x, y), (bx + nx, by + ny), (bx - nx, by - ny)]
+
+
+_HEADS: dict[tuple[float, float, float, float], QPolygonF] = {}
+
+
+def _arrow_head(x: float, y: float, dx: float, dy: float, size: float = 5.0, pen: float = 1.4) -> QPolygonF:
+    """A filled arrow head with its tip at (x, y) pointing along the unit vector (dx, dy),
+    taking in the outline of a ``pen`` wide pen (drawn with no pen: see ``_outlined``).
+    One shape per direction is worked out; a head is that shape moved into place."""
+    key = (dx, dy, size, pen)
+    shape = _HEADS.get(key)
+    if shape is None:
+        if len(_HEADS) > 256:
+            _HEADS.clear()
+        shape = _HEADS[key] = _outlined(_head_points(0.0, 0.0, dx, dy, size), pen)
+    return shape.translated(x, y)
+
+
+def _arc_band(r: float, start: float, span: float, width: float, step: float = 5.0) -> QPolygonF:
+    """The area a ``width`` wide pen with round caps covers along an arc of radius ``r``
+    about the origin (``start`` and ``span`` in degrees, counter-clockwise positive as in
+    ``QPainter.drawArc``, y down), as a polygon with a corner every ``step`` degrees at most."""
+    h = width / 2
+    k = max(2, math.ceil(abs(span) / step) + 1)
+    angles = [math.radians(start + span * i / (k - 1)) for i in range(k)]
+
+    def cap(a: float, turn: float) -> list[QPointF]:
+        # half a circle round the arc's end at angle a, from its outer edge to its inner one
+        cx, cy = r * math.cos(a), -r * math.sin(a)
+        out = math.atan2(-math.sin(a), math.cos(a))
+        return [QPointF(cx + h * math.cos(out + turn * math.pi * j / 6), cy + h * math.sin(out + turn * math.pi * j / 6))
+                for j in range(1, 6)]
+
+    # y runs down, so an arc run counter-clockwise turns its screen angle the other way
+    turn = -1.0 if span > 0 else 1.0
+    return QPolygonF([QPointF((r + h) * math.cos(a), -(r + h) * math.sin(a)) for a in angles]
+                     + cap(angles[-1], turn)  # round ahead of the end
+                     + [QPointF((r - h) * math.cos(a), -(r - h) * math.sin(a)) for a in reversed(angles)]
+                     + cap(angles[0], -turn)[::-1])  # and behind the start, inner edge to outer
+
+
+def _rounded_box(rect: QRectF, radius: float, steps: int = 4) -> QPolygonF:
+    """``rect`` with corners rounded to ``radius``, as a polygon (``steps`` sides per corner)."""
+    corners = ((rect.right() - radius, rect.top() + radius, -90), (rect.right() - radius, rect.bottom() - radius, 0),
+               (rect.left() + radius, rect.bottom() - radius, 90), (rect.left() + radius, rect.top() + radius, 180))
+    return QPolygonF([QPointF(cx + radius * math.cos(math.radians(a0 + 90 * j / steps)),
+                              cy + radius * math.sin(math.radians(a0 + 90 * j / steps)))
+                      for cx, cy, a0 in corners for j in range(steps + 1)])
 
 
 _TEXTS: dict[str, tuple[QStaticText, float]] = {}
@@ -94,17 +163,15 @@ def _align(o: PartItem) -> int:
     return _CENTRE if o.horizontal else _LEFT if o.side > 0 else _RIGHT
 
 
-_PENS: dict[tuple[int, float, bool], QPen] = {}
+_PENS: dict[tuple[int, float], QPen] = {}
 
 
-def _pen(colour, width: float, round_cap: bool = False) -> QPen:
+def _pen(colour, width: float) -> QPen:
     """A pen of ``colour`` (a QColor) and ``width``, made once."""
-    key = (colour.rgba(), width, round_cap)
+    key = (colour.rgba(), width)
     pen = _PENS.get(key)
     if pen is None:
         pen = _PENS[key] = QPen(colour, width)
-        if round_cap:
-            pen.setCapStyle(Qt.PenCapStyle.RoundCap)
     return pen
 
 
@@ -131,6 +198,21 @@ def _fits_slot(value: float) -> bool:
 def _rounded(value: float) -> str:
     """What decides a mark's text and arrow: sign and three significant figures (as ``format_value``)."""
     return f"{value:.2e}"
+
+
+_WRITTEN: dict[tuple[str, str], str] = {}
+
+
+def _written(key: str, value: float, unit: str) -> str:
+    """``format_value(value, unit)`` for a value whose ``_rounded`` is ``key``: the text
+    follows from the key alone, so it is written once per key (values recur from one
+    solution to the next, and writing one costs more than laying out its mark)."""
+    hit = _WRITTEN.get((key, unit))
+    if hit is None:
+        if len(_WRITTEN) >= _TEXTS_KEPT:
+            _WRITTEN.clear()
+        hit = _WRITTEN[(key, unit)] = format_value(value, unit)
+    return hit
 
 
 class _LayerPainted(QGraphicsItem):
@@ -198,6 +280,7 @@ class _PartMark(_LayerPainted):
         self._owner = parent  # the parent item: asking Qt for it costs a call each time
         self._advance = 0.0  # the width of the text ``_text_rect`` was laid out for
         self._fig: tuple | None = None  # what ``_lay_out`` worked out for the present text and layout
+        self._drawing: tuple | None = None  # what ``_draw`` worked out, and for what (``_lay_out``)
         self._cover_of: QRectF | None = None  # the text box ``_cover`` was worked out from
         self._cover: list[Box] = []
         self._visible = False  # what was last asked of setVisible (asking Qt again costs a call)
@@ -213,7 +296,7 @@ class _PartMark(_LayerPainted):
         if self.value is None:
             return ""
         if self._text_of != self.value:
-            self._text = self._format(self.value)
+            self._text = _written(self._key.lstrip("-"), abs(self.value), self.UNIT)
             self._text_of = self.value
             self._text_rect = None
         return self._text
@@ -264,19 +347,15 @@ class _PartMark(_LayerPainted):
         self._layer_on = on
         self._show(on and self.value is not None)
 
-    def _format(self, value: float) -> str:
-        return format_value(abs(value), self.UNIT)
-
-    def _text_at(self, box: QRectF, align: int, text: str) -> tuple[QPointF, QStaticText]:
-        """Where ``text`` goes in ``box`` with ``align`` (as ``drawText`` would put it), and the
-        text ready to draw: a static text is laid out once, not on every paint."""
+    def _text_at(self, box: QRectF, align: int) -> QPointF:
+        """Where the text goes in ``box`` with ``align`` (as ``drawText`` would put it)."""
         if align == _CENTRE:
             x = box.left() + (box.width() - self._advance) / 2
         elif align == _LEFT:
             x = box.left()
         else:
             x = box.right() - self._advance
-        return QPointF(x, box.top() + (box.height() - _fm().height()) / 2), _text(text)[0]
+        return QPointF(x, box.top() + (box.height() - _fm().height()) / 2)
 
     def relayout(self) -> None:
         """Lay the box out again (the owner moved or turned, or an unusual value came)."""
@@ -285,6 +364,7 @@ class _PartMark(_LayerPainted):
         o = self.owner
         self._text_rect = None
         self._fig = None
+        self._drawing = None
         if self.value is None:
             self._bounds = QRectF()
         else:
@@ -299,6 +379,27 @@ class _PartMark(_LayerPainted):
     def _beside_body(self) -> QRectF:
         """What the mark draws at the part's body, apart from its text (none here)."""
         return QRectF()
+
+    def _lay_out(self) -> tuple:
+        """(text's top left, static text, lines, arrow head or None) in scene coordinates.
+
+        Where the text goes and the lines beside it follow from the text's width and the
+        value's sign alone (``_draw``), and digits are all one width: a new value mostly
+        takes the place worked out for the last one.
+        """
+        text = self.text
+        st, advance = _text(text)
+        v = self.value
+        follows = (advance, v < 0, v == 0)
+        kept = self._drawing
+        if kept is None or kept[0] != follows:
+            kept = self._drawing = (follows, self._draw(text))
+        at, lines, head = kept[1]
+        return at, st, lines, head
+
+    def _draw(self, text: str) -> tuple:
+        """(text's top left, lines, arrow head or None) in scene coordinates for ``text``."""
+        raise NotImplementedError
 
     def boundingRect(self) -> QRectF:
         return self._bounds
@@ -331,16 +432,15 @@ class CurrentMark(_PartMark):
     UNIT = "A"
     GROUP = 0
 
-    def _lay_out(self) -> tuple:
-        """(text's top left, static text, lines, arrow head or None) in scene coordinates."""
-        o, text = self.owner, self.text
+    def _draw(self, text: str) -> tuple:
+        o = self.owner
         r = self.text_rect.translated(o.pos())
         box = r
         if not o.horizontal:
             box = r.adjusted(self.ROOM, 0, 0, 0) if o.side > 0 else r.adjusted(0, 0, -self.ROOM, 0)
-        at, st = self._text_at(box, _align(o), text)
+        at = self._text_at(box, _align(o))
         if self.value == 0:
-            return at, st, [], None
+            return at, [], None
         x0, y0, x1, y1 = o.ends
         ux, uy = _unit_xy(x1 - x0, y1 - y0)
         if self.value < 0:
@@ -354,7 +454,7 @@ class CurrentMark(_PartMark):
             mx, my = r.right() - 6, cy + 1
         tip_x, tip_y = mx + 8 * ux, my + 8 * uy
         shaft = QLineF(mx - 8 * ux, my - 8 * uy, tip_x - 3 * ux, tip_y - 3 * uy)
-        return at, st, [shaft], _arrow_head(tip_x, tip_y, ux, uy)
+        return at, [shaft], _arrow_head(tip_x, tip_y, ux, uy)
 
 
 class DropMark(_PartMark):
@@ -373,13 +473,13 @@ class DropMark(_PartMark):
         ends.translate(0, side) if o.horizontal else ends.translate(side, 0)
         return ends.adjusted(-5, -5, 5, 5)
 
-    def _lay_out(self) -> tuple:
-        """(text's top left, static text, +/- lines, None) in scene coordinates."""
-        o, text = self.owner, self.text
+    def _draw(self, text: str) -> tuple:
+        """(text's top left, the + and − lines, None) in scene coordinates."""
+        o = self.owner
         pos = o.pos()
-        at, st = self._text_at(self.text_rect.translated(pos), _align(o), text)
+        at = self._text_at(self.text_rect.translated(pos), _align(o))
         if self.value == 0:
-            return at, st, [], None
+            return at, [], None
         x0, y0, x1, y1 = o.ends
         if self.value < 0:
             x0, y0, x1, y1 = x1, y1, x0, y0
@@ -390,7 +490,7 @@ class DropMark(_PartMark):
         px, py = x0 + 9 * ux + sx, y0 + 9 * uy + sy
         mx, my = x1 - 9 * ux + sx, y1 - 9 * uy + sy
         lines = [QLineF(px - r, py, px + r, py), QLineF(px, py - r, px, py + r), QLineF(mx - r, my, mx + r, my)]
-        return at, st, lines, None
+        return at, lines, None
 
 
 class ReadingLayer(QGraphicsItem):
@@ -509,38 +609,54 @@ class ReadingLayer(QGraphicsItem):
         th = current_theme()
         painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
         painter.setFont(small_font())
+        # (pen of the lines and texts, fill of the shapes) per group; shapes take in their
+        # outlines and are filled with no pen (see ``_outlined``)
         looks = ((_pen(th.current, 1.4), th.current), (_pen(th.drop, 1.4), th.drop),
-                 (_pen(th.potential, 0.9), th.tag), (_pen(th.loop, 1.5, round_cap=True), th.loop))
+                 (_pen(th.potential, 0.9), th.tag), (_pen(th.loop, LoopMark.PEN), th.loop))
+        no_pen = Qt.PenStyle.NoPen
         text, polygon = painter.drawStaticText, painter.drawPolygon
-        for group, (pen, brush) in enumerate(looks):
-            # the figures of the marks in sight; one loop per group, with no call per mark but
-            # the drawing itself (hundreds of marks are drawn on each repaint)
+        for group, (pen, fill) in enumerate(looks):
+            # the figures of the marks in sight; one loop per kind of stroke, with no call per
+            # mark but the drawing itself (hundreds of marks are drawn on each repaint)
             figs = [m._fig or m.figure() for m in self._in_sight(group, left, top, right, bottom)]
             if not figs:
                 continue
-            painter.setPen(pen)
-            painter.setBrush(brush)
-            if group < 2:  # part marks: text, lines, arrow head
+            if group < 2:  # part marks: arrow heads, then texts and lines
+                heads = [f[3] for f in figs if f[3] is not None]
+                if heads:
+                    painter.setPen(no_pen)
+                    painter.setBrush(fill)
+                    for head in heads:
+                        polygon(head)
+                painter.setPen(pen)
                 lines: list[QLineF] = []
-                for at, st, mark_lines, head in figs:
+                for at, st, mark_lines, _ in figs:
                     text(at, st)
                     if mark_lines:
                         lines += mark_lines
-                    if head is not None:  # one polygon each: a path of all heads fills slower
-                        polygon(head)
                 if lines:
                     painter.drawLines(lines)
             elif group == 2:  # potential tags: leader lines under the boxes, then box and text
+                painter.setPen(pen)
                 painter.drawLines([f[0] for f in figs])
-                box = painter.drawRoundedRect
-                for _, rect, at, st in figs:
-                    box(rect, 3, 3)
-                    text(at, st)
-            else:  # loop marks: arc, arrow head, text
-                arc = painter.drawArc
-                for rect, start, span, head, at, st in figs:
-                    arc(rect, start, span)
+                painter.setPen(no_pen)
+                painter.setBrush(th.potential)
+                for f in figs:
+                    polygon(f[1])
+                painter.setBrush(fill)
+                for f in figs:
+                    polygon(f[2])
+                painter.setPen(pen)
+                for f in figs:
+                    text(f[3], f[4])
+            else:  # loop marks: arc and arrow head, then text
+                painter.setPen(no_pen)
+                painter.setBrush(fill)
+                for band, head, _, _ in figs:
+                    polygon(band)
                     polygon(head)
+                painter.setPen(pen)
+                for _, _, at, st in figs:
                     text(at, st)
 
 
@@ -592,6 +708,7 @@ class PotentialTag(_HungMark):
 
     CORNERS = ((-1, -1), (1, -1), (-1, 1), (1, 1))
     GROUP = 2
+    BORDER = 0.9  # the box's rim
 
     def __init__(self, layer: ReadingLayer) -> None:
         super().__init__(layer)
@@ -606,9 +723,15 @@ class PotentialTag(_HungMark):
         if key == self._key:
             return
         self._key = key
-        text = format_value(value, "V")
-        if text != self.text:
-            self.text = text
+        text = _written(key, value, "V")
+        if text == self.text:
+            return
+        fig, same_width = self._fig, _advance(text) == _advance(self.text)
+        self.text = text
+        if fig is not None and same_width:  # the same box: only the text is new (digits are one width)
+            self._fig = (*fig[:4], _text(text)[0])
+            self.repaint()
+        else:
             self.set_corner(self._corner)
 
     def rect_at(self, corner: tuple[int, int]) -> QRectF:
@@ -637,12 +760,31 @@ class PotentialTag(_HungMark):
         return path
 
     def _lay_out(self) -> tuple:
-        """(leader line, box, text's top left, static text) in scene coordinates."""
+        """(leader line, box's edge, box's inside, text's top left, static text) in scene coordinates:
+        the box is two filled shapes, its edge a ``BORDER`` wide rim (see ``_outlined`` for why)."""
         pos = self.pos()
         r = self._rect.translated(pos)
         corner = QPointF(r.right() if self._corner[0] < 0 else r.left(),
                          r.bottom() if self._corner[1] < 0 else r.top())
-        return (QLineF(pos, corner), r, *_centred(r, self.text))
+        edge, inside = _tag_box(self._rect)
+        return (QLineF(pos, corner), edge.translated(pos), inside.translated(pos), *_centred(r, self.text))
+
+
+_BOXES: dict[tuple[float, float, float, float], tuple[QPolygonF, QPolygonF]] = {}
+
+
+def _tag_box(rect: QRectF) -> tuple[QPolygonF, QPolygonF]:
+    """A tag's box (3 px corners, a rim of ``PotentialTag.BORDER``) about its point, as the
+    rim's outer shape and the inside: worked out once per box (tags of like values share one)."""
+    key = (rect.x(), rect.y(), rect.width(), rect.height())
+    hit = _BOXES.get(key)
+    if hit is None:
+        if len(_BOXES) > 1024:
+            _BOXES.clear()
+        h = PotentialTag.BORDER / 2
+        hit = _BOXES[key] = (_rounded_box(rect.adjusted(-h, -h, h, h), 3 + h),
+                             _rounded_box(rect.adjusted(h, h, -h, -h), 3 - h))
+    return hit
 
 
 class LoopMark(_HungMark):
@@ -657,6 +799,7 @@ class LoopMark(_HungMark):
     R_COMPACT = 6.0
     SIDES = ("below", "above", "right", "left")
     GROUP = 3
+    PEN = 1.5  # the arrow's width
 
     def __init__(self, layer: ReadingLayer) -> None:
         super().__init__(layer)
@@ -677,13 +820,23 @@ class LoopMark(_HungMark):
         if key == self._key and name == self.name and clockwise == self.clockwise:
             return
         self._key = key
-        text = f"{name} {format_value(current, 'A')}"
+        text = f"{name} {_written(key, current, 'A')}"
         if text == self.full_text and clockwise == self.clockwise:
             return
+        fig, old = self._fig, self.full_text
+        same_shape = fig is not None and name == self.name and clockwise == self.clockwise
         self.clockwise = clockwise
         self.name = name
         self.full_text = text
         self.setToolTip(f"Loop current {text}")
+        if same_shape and self.compact:
+            return  # the name alone is shown: nothing drawn changes
+        if same_shape and _advance(text) == _advance(old):  # the same box: only the text is new
+            self.text = text
+            self._fig = (*fig[:3], _text(text)[0])
+            if readable:
+                self.repaint()
+            return
         self.set_layout(self.side, self.compact, readable)
 
     def text_rect_at(self, side: str, compact: bool) -> QRectF:
@@ -725,17 +878,31 @@ class LoopMark(_HungMark):
         return QRectF(-r, -r, 2 * r, 2 * r).united(self._text_rect)
 
     def _lay_out(self) -> tuple:
-        """(arc box, start, span, arrow head, text's top left, static text) in scene coordinates."""
+        """(arc, arrow head, text's top left, static text) in scene coordinates; the arc and
+        head are shapes to fill (see ``_outlined`` for why)."""
         x, y = self.pos().x(), self.pos().y()
-        r = self._radius(self.compact)
+        band, head = _circling(self._radius(self.compact), self.clockwise)
+        return (band.translated(x, y), head.translated(x, y),
+                *_centred(self._text_rect.translated(x, y), self.text))
+
+
+_CIRCLING: dict[tuple[float, bool], tuple[QPolygonF, QPolygonF]] = {}
+
+
+def _circling(r: float, clockwise: bool) -> tuple[QPolygonF, QPolygonF]:
+    """A loop mark's arrow about the origin: the arc (its gap at the top, drawn by a
+    ``LoopMark.PEN`` wide pen with round caps) and the head at its end, as shapes to fill."""
+    key = (r, clockwise)
+    hit = _CIRCLING.get(key)
+    if hit is None:
         # Qt angles: counter-clockwise positive (y up); the gap sits at the top
-        start, span = (60 * 16, 300 * 16) if not self.clockwise else (120 * 16, -300 * 16)
-        end = math.radians((start + span) / 16.0)
+        start, span = (60.0, 300.0) if not clockwise else (120.0, -300.0)
+        end = math.radians(start + span)
         sgn = 1 if span > 0 else -1  # the tangent along the direction of travel
         tx, ty = -math.sin(end) * sgn, -math.cos(end) * sgn
-        head = _arrow_head(x + r * math.cos(end) + tx * 2, y - r * math.sin(end) + ty * 2, tx, ty, 6)
-        return (QRectF(x - r, y - r, 2 * r, 2 * r), start, span, head,
-                *_centred(self._text_rect.translated(x, y), self.text))
+        head = _arrow_head(r * math.cos(end) + tx * 2, -r * math.sin(end) + ty * 2, tx, ty, 6, LoopMark.PEN)
+        hit = _CIRCLING[key] = (_arc_band(r, start, span, LoopMark.PEN), head)
+    return hit
 
 
 class FaultNote(QGraphicsItem):

@@ -1,0 +1,153 @@
+"""How the reading layer draws its marks: the shapes it fills in place of stroked ones, and
+new values that keep a mark's box (only the text is drawn anew).
+
+The filled shapes are checked against Qt's own stroker: the area a pen covers is what
+``QPainter`` fills when it strokes, so both are rasterised large and compared pixel by pixel.
+The redrawn texts are checked against a window that draws the same circuit from scratch, and
+against Ohm's law for the values.
+"""
+from __future__ import annotations
+
+import os
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import numpy as np  # noqa: E402
+import pytest  # noqa: E402
+from PySide6.QtCore import QPointF, QRectF, Qt  # noqa: E402
+from PySide6.QtGui import QColor, QGuiApplication, QImage, QPainter, QPen, QPolygonF  # noqa: E402
+from PySide6.QtWidgets import QApplication  # noqa: E402
+
+from app.sketch.model import PlacedPart  # noqa: E402
+from app.ui import annotations as an  # noqa: E402
+from test_ui_reading_layer import divider  # noqa: E402
+from ui_support import open_window  # noqa: E402
+
+SCALE = 16  # large enough that the edges' antialiasing is a thin share of the shape
+
+
+def _raster(draw) -> QImage:
+    """What ``draw(painter)`` covers, 48 × 48 units about the origin at ``SCALE``, antialiased
+    (so each pixel holds the share of it covered, whatever the rasteriser's sampling rules)."""
+    image = QImage(48 * SCALE, 48 * SCALE, QImage.Format.Format_Grayscale8)
+    image.fill(255)
+    p = QPainter(image)
+    p.setRenderHint(QPainter.RenderHint.Antialiasing)
+    p.scale(SCALE, SCALE)
+    p.translate(24, 24)
+    draw(p)
+    p.end()
+    return image
+
+
+def _coverage(image: QImage) -> np.ndarray:
+    rows = np.frombuffer(image.constBits(), np.uint8).reshape(image.height(), image.bytesPerLine())
+    return (255 - rows[:, :image.width()].astype(float)) / 255
+
+
+def _agree(stroked, filled) -> tuple[float, float]:
+    """(area covered by one drawing and not the other, area covered by the stroked drawing), in pixels."""
+    a, b = _coverage(_raster(stroked)), _coverage(_raster(filled))
+    assert a.sum() > 100, "the reference drew nothing"
+    return float(np.abs(a - b).sum()), float(a.sum())
+
+
+def _stroked(polygon_or_arc, width: float, cap=Qt.PenCapStyle.SquareCap):
+    def draw(p: QPainter) -> None:
+        pen = QPen(QColor("black"), width)  # Qt's default join: bevel
+        pen.setCapStyle(cap)
+        p.setPen(pen)
+        p.setBrush(QColor("black"))
+        polygon_or_arc(p)
+    return draw
+
+
+def _filled(*shapes: QPolygonF):
+    def draw(p: QPainter) -> None:
+        p.setPen(Qt.PenStyle.NoPen)
+        p.setBrush(QColor("black"))
+        for s in shapes:
+            p.drawPolygon(s)
+    return draw
+
+
+@pytest.mark.parametrize("direction", [(1.0, 0.0), (0.0, -1.0), (-1.0, 0.0), (0.6, 0.8)])
+def test_filled_arrow_head_covers_what_a_stroked_one_does(direction):
+    dx, dy = direction
+    corners = QPolygonF([QPointF(x, y) for x, y in an._head_points(0.0, 0.0, dx, dy, 5.0)])
+    odd, total = _agree(_stroked(lambda p: p.drawPolygon(corners), 1.4), _filled(an._arrow_head(0.0, 0.0, dx, dy)))
+    assert odd < 0.01 * total  # only the flattening of curves differs
+
+
+def test_filled_loop_arrow_is_the_arc_a_round_capped_pen_draws():
+    # The reference is the shape's definition: the points within half the pen's width of the
+    # arc (radius 9, from 120° clockwise through 300°, y up). Qt's own stroker flattens its
+    # curves by up to half a pixel at this scale, so it is not exact enough to compare with.
+    r, h = 9.0, an.LoopMark.PEN / 2
+    band, _ = an._circling(r, True)
+    drawn = _coverage(_raster(_filled(band))) > 0.5
+    ys, xs = np.mgrid[0:drawn.shape[0], 0:drawn.shape[1]]
+    x, y = (xs + 0.5) / SCALE - 24, 24 - (ys + 0.5) / SCALE  # y up, as the angles
+    along = (np.degrees(np.arctan2(y, x)) - 120.0) % 360.0  # clockwise from the start is 360 - along
+    on_arc = (360.0 - along) % 360.0 <= 300.0
+    ends = [(r * np.cos(np.radians(a)), r * np.sin(np.radians(a))) for a in (120.0, -180.0)]
+    near_end = np.min([np.hypot(x - ex, y - ey) for ex, ey in ends], axis=0)
+    beyond = np.where(on_arc, np.abs(np.hypot(x, y) - r), near_end) - h  # < 0 inside the shape
+    clear = np.abs(beyond) > 0.5 / SCALE  # pixels more than half a pixel from the shape's edge
+    assert clear.sum() > 0.9 * drawn.size
+    assert ((beyond < 0) != drawn)[clear].sum() == 0  # all of them drawn as the definition says
+    # and its area is the sector's θ·r·w plus the two half-disc caps (shoelace formula)
+    pts = [(band.at(i).x(), band.at(i).y()) for i in range(band.count())]
+    area = abs(sum(x0 * y1 - x1 * y0 for (x0, y0), (x1, y1) in zip(pts, pts[1:] + pts[:1]))) / 2
+    assert area == pytest.approx(np.radians(300) * r * 2 * h + np.pi * h * h, rel=0.005)
+
+
+def test_tag_box_rim_and_inside_cover_a_stroked_rounded_box():
+    rect = QRectF(-20, -8, 40, 16)
+    edge, inside = an._tag_box(rect)
+    odd, total = _agree(_stroked(lambda p: p.drawRoundedRect(rect, 3, 3), an.PotentialTag.BORDER), _filled(edge))
+    assert odd < 0.01 * total
+    # the inside leaves the rim uncovered: what the pen drew inside the box's edge, as long as
+    # the box's edge and as wide as the pen
+    rim = (_coverage(_raster(_filled(edge))) - _coverage(_raster(_filled(inside)))).sum()
+    assert rim == pytest.approx(an.PotentialTag.BORDER * SCALE * 2 * (40 + 16) * SCALE, rel=0.05)
+
+
+def _pixels(win, marks) -> list[QImage]:
+    """The canvas's last painted pixels under each mark's box (the window's backing store)."""
+    QApplication.processEvents()
+    vp = win.view.viewport()
+    shot = QGuiApplication.primaryScreen().grabWindow(win.winId()).toImage()
+    at = vp.mapTo(win, vp.rect().topLeft())
+    out = []
+    for m in marks:
+        left, top, right, bottom = m._scene_box
+        box = win.view.mapFromScene(QRectF(left, top, right - left, bottom - top)).boundingRect()
+        out.append(shot.copy(box.translated(at.x(), at.y())).convertToFormat(QImage.Format.Format_RGB32))
+    return out
+
+
+def _marks(win):
+    r1 = win.scene.part_items["R1"]
+    tag = next(t for t in win.scene._tags if t.active and t.at == (8, 0))  # between R1 and R2
+    return [r1.current_mark, r1.drop_mark, tag, win.scene._loops[0]]
+
+
+def test_a_new_value_of_the_same_width_is_drawn_in_place(qtbot, tmp_path):
+    for sub in ("a", "b"):
+        (tmp_path / sub).mkdir()
+    win = open_window(qtbot, tmp_path / "a", divider(), size=(1100, 700), centre=(160, 40))
+    marks = _marks(win)
+    assert [m.text for m in marks[:3]] == ["1.50 mA", "3.00 V", "6.00 V"]  # 9 V / 6 kΩ (Ohm's law)
+    before = _pixels(win, marks)
+    win.editor.set_values("R1", {"resistance": 2100.0})
+    qtbot.waitUntil(lambda: not win.solver.busy)
+    # 9 V / 6.1 kΩ = 1.475 mA; R1 drops 3.098 V, the point after it sits at 9 V × 4/6.1 = 5.902 V
+    assert [m.text for m in marks[:3]] == ["1.48 mA", "3.10 V", "5.90 V"]
+    assert marks[3].text.endswith("1.48 mA")
+    after = _pixels(win, marks)
+    assert all(a != b for a, b in zip(before, after))  # every mark shows its new digits
+    fresh_sketch = divider()
+    fresh_sketch.replace_part("R1", PlacedPart("resistor", "R1", 4, 0, 0, False, {"resistance": 2100.0}))
+    fresh = open_window(qtbot, tmp_path / "b", fresh_sketch, size=(1100, 700), centre=(160, 40))
+    assert _pixels(fresh, _marks(fresh)) == after  # as a window drawing them from scratch
