@@ -24,7 +24,7 @@ costs more than all the sums made over it.
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 from scipy.sparse import csr_matrix
@@ -45,6 +45,11 @@ class LoopSet:
     ``loop``, ``branch`` and ``sign`` list each loop's ``(branch, sign)``
     pairs in traversal order, sorted by loop. ``clockwise[l]`` is +1 if loop
     ``l`` runs clockwise on screen, -1 anticlockwise, 0 unknown.
+
+    ``members`` is kept by :attr:`Solution.loops`: each loop's ``(name, sign)``
+    parts and orientation word, with the part names they were read from. A
+    loop set of a kept shape serves many solves of circuits with the same part
+    names, so their loops are listed once; :meth:`flip` forgets them.
     """
 
     method: str
@@ -56,6 +61,7 @@ class LoopSet:
     branch: np.ndarray
     sign: np.ndarray
     clockwise: np.ndarray
+    members: tuple | None = field(default=None, repr=False, compare=False)
 
     def matrix(self, nb: int) -> csr_matrix:
         """B as a scipy CSR matrix over ``nb`` branches (for the sparse solve of large systems)."""
@@ -65,6 +71,7 @@ class LoopSet:
 
     def flip(self, mask: np.ndarray) -> None:
         """Reverse the direction of the loops in ``mask`` (their order and signs)."""
+        self.members = None
         if not mask.any():
             return
         self.b_value = self.b_value * np.where(mask, -1.0, 1.0)[self.b_loop]

@@ -124,15 +124,20 @@ class Solution:
         if ls is None:
             return []
         names = self._topo.part_names
-        entry_names = [names[i] for i in self._topo.branch_parts[ls.branch].tolist()]
-        signs = ls.sign.tolist()
-        bounds = np.searchsorted(ls.loop, np.arange(ls.n_loops + 1)).tolist()
+        members = ls.members
+        if members is None or members[0] is not names:
+            entry_names = [names[i] for i in self._topo.branch_parts[ls.branch].tolist()]
+            signs = ls.sign.tolist()
+            bounds = np.searchsorted(ls.loop, np.arange(ls.n_loops + 1)).tolist()
+            members = ls.members = (
+                names,
+                [tuple(zip(entry_names[lo:hi], signs[lo:hi])) for lo, hi in zip(bounds, bounds[1:])],
+                ["clockwise" if cw > 0 else "anticlockwise" if cw < 0 else None for cw in ls.clockwise.tolist()])
         kind = "window" if ls.method == "windows" else "fundamental"
         make = _new_loop
-        return [make(k, tuple(zip(entry_names[lo:hi], signs[lo:hi])),
-                     "clockwise" if cw > 0 else "anticlockwise" if cw < 0 else None, current, kind)
-                for k, (lo, hi, cw, current) in enumerate(zip(bounds, bounds[1:], ls.clockwise.tolist(),
-                                                              self.loop_currents.tolist()))]
+        return [make(k, parts, orientation, current, kind)
+                for k, (parts, orientation, current) in enumerate(zip(members[1], members[2],
+                                                                      self.loop_currents.tolist()))]
 
     # -- more -----------------------------------------------------------------
     @property

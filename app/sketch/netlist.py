@@ -61,11 +61,7 @@ def _check(parts: list[PlacedPart], wires: list[Wire]) -> None:
     for part in parts:
         if part.kind not in KINDS:
             raise CircuitError(f"{part.name} is of an unknown kind ({part.kind}).", [part.name])
-        if part.name.startswith("~"):
-            raise CircuitError(
-                f"The name {part.name} starts with '~', which is kept for wires; rename the part.",
-                [part.name],
-            )
+        _check_name(part)
     for w in wires:
         if (w.x1 == w.x2) == (w.y1 == w.y2):  # a run changes exactly one coordinate
             raise CircuitError(
@@ -73,6 +69,20 @@ def _check(parts: list[PlacedPart], wires: list[Wire]) -> None:
                 "vertical run between two different points.",
                 [],
             )
+
+
+def _check_name(part: PlacedPart) -> None:
+    if part.name.startswith("~"):
+        raise CircuitError(
+            f"The name {part.name} starts with '~', which is kept for wires; rename the part.",
+            [part.name],
+        )
+
+
+def _check_names(parts: list[PlacedPart]) -> None:
+    for part in parts:
+        if part.name.startswith("~"):
+            _check_name(part)
 
 
 def _runs(wires: list[Wire]):
@@ -197,6 +207,45 @@ class _Groups:
         self._up[self.find(p)] = self.find(q)
 
 
+@dataclass(frozen=True)
+class _Layout:
+    """What a netlist takes from the drawing alone, kept for the next sketch drawn the same way.
+
+    ``ends`` are the circuit point names of each non-ground part's terminals in sketch order,
+    ``conductors`` the wire pieces and then the ground ties as ``(name, a, b)``. Never
+    handed out: every netlist gets copies of the containers.
+    """
+
+    key: tuple | None
+    point_at: dict[GridPoint, str]
+    ends: list[tuple[str, str]]
+    conductors: list[tuple[str, str, str]]
+    ground: str | None
+    wire_parts: dict[int, list[str]]
+    junctions: list[GridPoint]
+    open_ends: list[GridPoint]
+
+
+_LAYOUTS: tuple[_Layout, ...] = ()   # the last few, newest first (replaced whole: threads may build netlists)
+_LAYOUTS_KEPT = 4
+
+
+def _layout_key(parts: list[PlacedPart], wires: list[Wire]) -> tuple:
+    """Everything the layout follows from: each part's kind and terminal points in order, and the wires.
+
+    Names, values, flags and choices are left out: they decide the circuit's parts, which are
+    built afresh for every netlist, never where points, pieces, junctions or grounds lie.
+    """
+    return tuple([(p.kind, p.terminal_points) for p in parts]), tuple(wires)
+
+
+def _integral(parts: list[PlacedPart], wires: list[Wire]) -> bool:
+    """Whether every coordinate is an ``int``: a 1.0 equals 1 in a layout key, yet names its points "1.0,…"."""
+    return (all(type(p.x) is int and type(p.y) is int for p in parts)
+            and all(type(w.x1) is int and type(w.y1) is int and type(w.x2) is int and type(w.y2) is int
+                    for w in wires))
+
+
 def to_circuit(sketch: Sketch) -> Netlist:
     """The circuit drawn in ``sketch``, every point placed at its grid position.
 
@@ -204,10 +253,48 @@ def to_circuit(sketch: Sketch) -> Netlist:
     the higher grid coordinate; several ground symbols are tied together by
     wire parts ``~gnd1``, ``~gnd2``….  Raises ``CircuitError`` (with
     ``.parts``) for a sketch that cannot become a circuit.
+
+    The geometry (points, wire pieces, junctions, open ends, ground ties) of the
+    last few drawings is kept: after an edit that leaves every part where it was and
+    the wires as they were (a new value, a switch thrown, a rename) only the circuit's
+    parts are made again.
     """
+    global _LAYOUTS
     parts = sketch.parts
     wires = sketch.wires
-    _check(parts, wires)
+    key = _layout_key(parts, wires) if _integral(parts, wires) else None
+    layouts = _LAYOUTS
+    layout = None if key is None else next((lay for lay in layouts if lay.key == key), None)
+    if layout is None:
+        _check(parts, wires)
+        layout = _new_layout(key, parts, wires)
+        if key is not None:
+            _LAYOUTS = (layout, *layouts[:_LAYOUTS_KEPT - 1])
+    else:
+        _check_names(parts)   # the kinds and wires were checked when the layout was made
+    c = Circuit()
+    point_at = layout.point_at
+    for p, name in point_at.items():
+        c.place(name, p[0], p[1])
+    ends = iter(layout.ends)
+    for part in parts:
+        if part.kind != "ground":
+            a, b = next(ends)
+            _add_part(c, part, a, b)
+    for name, a, b in layout.conductors:
+        c.wire(name, a, b)
+    return Netlist(
+        circuit=c,
+        ground=layout.ground,
+        point_at=dict(point_at),
+        wire_parts={i: list(names) for i, names in layout.wire_parts.items()},
+        junctions=list(layout.junctions),
+        open_ends=list(layout.open_ends),
+    )
+
+
+def _new_layout(key: tuple | None, parts: list[PlacedPart], wires: list[Wire]) -> _Layout:
+    """Work out the layout of a drawing (checked already) not kept."""
     degree = Counter(chain.from_iterable(p.terminal_points for p in parts))  # wire pieces added below
     stops = set(degree)
     for w in wires:
@@ -215,20 +302,17 @@ def to_circuit(sketch: Sketch) -> Netlist:
         stops.add((w.x2, w.y2))
     points = sorted(stops)
     pieces = _pieces(wires, points)
-
-    c = Circuit()
     point_at = {p: point_name(p) for p in points}
-    for p, name in point_at.items():
-        c.place(name, p[0], p[1])
-
+    ends = []
     for part in parts:
         if part.kind != "ground":
             a, b = part.terminal_points
-            _add_part(c, part, point_at[a], point_at[b])
+            ends.append((point_at[a], point_at[b]))
 
     wire_parts: dict[int, list[str]] = {i: [] for i in range(len(wires))}
+    conductors: list[tuple[str, str, str]] = []
     for piece in pieces:
-        c.wire(piece.name, point_at[piece.a], point_at[piece.b])
+        conductors.append((piece.name, point_at[piece.a], point_at[piece.b]))
         degree[piece.a] += 1
         degree[piece.b] += 1
         for i in piece.wires:
@@ -238,19 +322,22 @@ def to_circuit(sketch: Sketch) -> Netlist:
             wire_parts[i].reverse()  # list them from the wire's first end
 
     grounds = [p.terminal_points[0] for p in parts if p.kind == "ground"]
-    return Netlist(
-        circuit=c,
-        ground=_tie_grounds(c, grounds, pieces, point_at, degree),
+    ground = _tie_grounds(conductors, grounds, pieces, point_at, degree)
+    return _Layout(
+        key=key,
         point_at=point_at,
+        ends=ends,
+        conductors=conductors,
+        ground=ground,
         wire_parts=wire_parts,
         junctions=sorted(p for p, n in degree.items() if n >= 3),
         open_ends=sorted(p for p, n in degree.items() if n == 1),
     )
 
 
-def _tie_grounds(c: Circuit, grounds: list[GridPoint], pieces: list[_Piece],
+def _tie_grounds(ties: list[tuple[str, str, str]], grounds: list[GridPoint], pieces: list[_Piece],
                  point_at: dict[GridPoint, str], degree: Counter[GridPoint]) -> str | None:
-    """Join the ground symbols' nodes into one; the ground point name or None.
+    """Join the ground symbols' nodes into one (the tie wires appended to ``ties``); the ground point name or None.
 
     ``grounds`` are the symbols' points in the sketch's order (the first names
     the ground), ``degree`` the terminals and wire pieces at each point.
@@ -271,7 +358,7 @@ def _tie_grounds(c: Circuit, grounds: list[GridPoint], pieces: list[_Piece],
         for g in sorted(points, key=lambda p: (p[1], p[0])):
             if previous is not None and groups.find(g) != groups.find(previous):
                 n += 1
-                c.wire(f"{GROUND_TIE_PREFIX}{n}", point_at[previous], point_at[g])
+                ties.append((f"{GROUND_TIE_PREFIX}{n}", point_at[previous], point_at[g]))
                 groups.join(g, previous)
             previous = g
     # A symbol is no circuit part: its point is a circuit point only if a part, a wire piece or a tie

@@ -122,6 +122,28 @@ def _window(loop, ends: dict[str, tuple[str, str]], pos: dict[str, tuple[float, 
     return hit
 
 
+_LAST_WINDOWS: tuple[dict, list, list] | None = None   # (ends, loop parts, windows) of the last solve
+
+
+def _windows(loops: list, circuit) -> list[tuple[tuple[float, float] | None, list[tuple[float, float]]]]:
+    """:func:`_window` of each loop of a solution of ``circuit``.
+
+    After a value edit the parts, their end points and the loops are those of the
+    last solve (the solver lists the loops of a kept shape with the same tuples):
+    then the last solve's windows are the answer, found without a look-up per loop.
+    """
+    global _LAST_WINDOWS
+    ends = {p.name: (p.a, p.b) for p in circuit.parts}
+    members = [loop.parts for loop in loops]
+    last = _LAST_WINDOWS
+    if last is not None and last[1] == members and last[0] == ends:
+        return last[2]
+    pos = circuit.positions
+    windows = [_window(loop, ends, pos) for loop in loops]
+    _LAST_WINDOWS = (ends, members, windows)
+    return windows
+
+
 def _inside(p: tuple[float, float], poly: list[tuple[float, float]]) -> bool:
     x, y = p
     inside = False
@@ -159,16 +181,18 @@ def _from_netlist(generation: int, netlist: Netlist, sketch: Sketch | None = Non
     junctions = set(netlist.junctions)
     grid_of = {name: p for p, name in netlist.point_at.items()}
     for node, points in sol.nodes.items():
-        v = sol.potential(points[0])
         if node in refs:
+            continue
+        v = sol.potential(points[0])
+        if len(points) == 1:   # most nodes of a sketch drawn without wires: nothing to choose from
+            p = points[0]
+            res.potentials.append((grid_of.get(p) or _grid(p), v))
             continue
         grid = [grid_of.get(p) or _grid(p) for p in points]
         at = min(grid, key=lambda g: (g not in junctions, g[1], g[0]))
         res.potentials.append((at, v))
-    ends = {p.name: (p.a, p.b) for p in circuit.parts}
-    pos = circuit.positions
-    for loop in sol.loops:
-        c, outline = _window(loop, ends, pos)
+    loops = sol.loops
+    for loop, (c, outline) in zip(loops, _windows(loops, circuit)):
         if c is not None and math.isfinite(loop.current):
             res.loops.append((c, loop.name, loop.current, loop.orientation != "anticlockwise"))
             res.loop_outlines.append(outline)
