@@ -19,7 +19,6 @@ from ..units import format_value
 __all__ = ["ReadingsModel", "ReadingsView", "natural_key", "BRANCH", "EFFECT"]
 
 COLUMNS = ("Part", "Current", "Drop", "Power", "As", "Meter effect")  # "As": the branch current's name
-_UNITS = (None, "A", "V", "W")
 BRANCH = 4  # the column naming the part's current by its branch (tag or automatic name)
 EFFECT = 5  # the column of the meters' effect
 
@@ -28,6 +27,8 @@ _DISPLAY = int(Qt.ItemDataRole.DisplayRole.value)
 _ALIGN = int(Qt.ItemDataRole.TextAlignmentRole.value)
 _TIP = int(Qt.ItemDataRole.ToolTipRole.value)
 _RIGHT = int((Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter).value)
+_NO_VALUES = ("—", "—", "—")
+_MOST_CELLS = 200  # QTableView (Qt 6.11) repaints all it shows for a dataChanged of more cells
 
 
 def natural_key(name: str) -> tuple:
@@ -36,7 +37,13 @@ def natural_key(name: str) -> tuple:
 
 
 class ReadingsModel(QAbstractTableModel):
-    """Table of part, current (first terminal to second), drop and absorbed power."""
+    """Table of part, current (first terminal to second), drop and absorbed power.
+
+    The value texts of a row are formatted when a view first asks for them and kept while
+    they stay the same; each new solution is held against them, and ``dataChanged`` covers
+    only the rows whose texts differ, so the table repaints only those (at three significant
+    figures a new value in a large sketch changes few of the texts on screen).
+    """
 
     filled = Signal()  # values arrived after a time without any (a first solution, or after an error)
 
@@ -48,6 +55,7 @@ class ReadingsModel(QAbstractTableModel):
         self.branch_names: dict[str, str] = {}  # part -> "Ia" or "−Ia"
         self._row_of: dict[str, int] = {}
         self._drawn: list[str] = []  # the names in document order, as last seen
+        self._shown: dict[int, tuple[str, str, str]] = {}  # row -> its value texts as handed out, still current
 
     def set_parts(self, sketch: Sketch) -> None:
         """Follow the document's parts (ground symbols are left out).
@@ -63,32 +71,70 @@ class ReadingsModel(QAbstractTableModel):
         if names != self.names:
             self.beginResetModel()
             self.rows = {}  # another set of parts: the next values are a first fill (columns refit)
+            self._shown = {}
             self.names = names
             self._row_of = {n: i for i, n in enumerate(names)}
             self.endResetModel()
 
     def set_readings(self, readings: dict[str, tuple[float, float, float]]) -> None:
-        """Show new values (an empty dict shows dashes)."""
-        first = readings and not self.rows
-        self.rows = readings
+        """Show new values (an empty dict shows dashes); only rows whose texts change are repainted.
+
+        A row whose texts were handed out is formatted again and compared; any other row
+        counts as changed when its values differ.
+        """
+        first = bool(readings) and not self.rows
+        old, self.rows = self.rows, readings
+        shown, self._shown = ({} if first else self._shown), {}  # dashes to values: every row changes
+        changed: list[int] = []
+        for row, name in enumerate(self.names):
+            texts = shown.get(row)
+            if old.get(name) != readings.get(name):
+                if texts is None:
+                    changed.append(row)
+                    continue
+                new = self._value_texts(name)
+                if new != texts:
+                    changed.append(row)
+                    texts = new
+            if texts is not None:
+                self._shown[row] = texts
         if first:
             self.filled.emit()
-        if self.names:
-            self.dataChanged.emit(self.index(0, 1), self.index(len(self.names) - 1, 3))
+        self._emit_rows(changed, 1, 3)
 
     def set_effects(self, effects: dict[str, tuple[str, str]]) -> None:
         """Show how the meters shift the circuit: (short, full) text per part (meters, the most shifted part)."""
-        self.effects = effects
-        if self.names:
-            self.dataChanged.emit(self.index(0, EFFECT), self.index(len(self.names) - 1, EFFECT))
+        old, self.effects = self.effects, effects
+        self._emit_names({n for n in old.keys() | effects.keys() if old.get(n) != effects.get(n)}, EFFECT)
 
     def set_branch_names(self, names: dict[str, str]) -> None:
         """Name each part's current by its branch: ``Ia`` along the part, ``−Ia`` against it."""
-        if names == self.branch_names:
-            return
-        self.branch_names = names
-        if self.names:
-            self.dataChanged.emit(self.index(0, BRANCH), self.index(len(self.names) - 1, BRANCH))
+        old, self.branch_names = self.branch_names, names
+        self._emit_names({n for n in old.keys() | names.keys() if old.get(n) != names.get(n)}, BRANCH)
+
+    def _emit_names(self, names: set[str], column: int) -> None:
+        self._emit_rows(sorted(self._row_of[n] for n in names if n in self._row_of), column, column)
+
+    def _emit_rows(self, rows: list[int], first_column: int, last_column: int) -> None:
+        """Tell the views which rows (ascending) changed in these columns: one signal per run of rows.
+
+        A run is cut to at most ``_MOST_CELLS`` cells: for a larger range a table view repaints
+        all it shows, changed or not.
+        """
+        most = max(1, _MOST_CELLS // (last_column - first_column + 1))
+        start = 0
+        for k in range(1, len(rows) + 1):
+            if k == len(rows) or rows[k] != rows[k - 1] + 1 or k - start == most:
+                self.dataChanged.emit(self.index(rows[start], first_column), self.index(rows[k - 1], last_column))
+                start = k
+
+    def keep_shown(self, first: int, last: int) -> None:
+        """Forget the value texts handed out for rows outside ``first``..``last`` (off screen).
+
+        Only a matter of speed: a forgotten row is not formatted again to be compared, and
+        counts as changed when its values change.
+        """
+        self._shown = {r: t for r, t in self._shown.items() if first <= r <= last}
 
     def row_of(self, name: str) -> int:
         return self._row_of.get(name, -1)
@@ -99,18 +145,25 @@ class ReadingsModel(QAbstractTableModel):
     def columnCount(self, parent: QModelIndex | QPersistentModelIndex = QModelIndex()) -> int:
         return 0 if parent.isValid() else len(COLUMNS)
 
+    def _value_texts(self, name: str) -> tuple[str, str, str]:
+        r = self.rows.get(name)
+        if r is None:
+            return _NO_VALUES
+        return format_value(r[0], "A"), format_value(r[1], "V"), format_value(r[2], "W")
+
     def text(self, row: int, column: int) -> str:
+        """The text shown in a cell."""
+        if 1 <= column <= 3:
+            texts = self._shown.get(row)
+            if texts is None:
+                texts = self._shown[row] = self._value_texts(self.names[row])
+            return texts[column - 1]
         name = self.names[row]
         if column == 0:
             return name
         if column == EFFECT:
             return self.effects.get(name, ("", ""))[0]
-        if column == BRANCH:
-            return self.branch_names.get(name, "")
-        r = self.rows.get(name)
-        if r is None:
-            return "—"
-        return format_value(r[column - 1], _UNITS[column])
+        return self.branch_names.get(name, "")
 
     def data(self, index: QModelIndex | QPersistentModelIndex, role: int = Qt.ItemDataRole.DisplayRole):
         # asked for every visible cell and role on each repaint: compare plain ints, not Qt enums
@@ -164,8 +217,16 @@ class ReadingsView(QTableView):
         self.setAlternatingRowColors(True)
         self.setShowGrid(False)
         self.setWordWrap(False)
+        self.verticalScrollBar().valueChanged.connect(self._forget_hidden_rows)
 
     def _fit_columns(self) -> None:
         """Size the columns to what they hold (at most the first few hundred rows are measured)."""
         self.horizontalHeader().setResizeContentsPrecision(200)
         self.resizeColumnsToContents()
+        self._forget_hidden_rows()  # measuring asked for every row's texts
+
+    def _forget_hidden_rows(self) -> None:
+        """Let the model drop the texts of rows out of sight, so a new solution compares only those on screen."""
+        model = self.model()
+        last = self.rowAt(self.viewport().height() - 1)
+        model.keep_shown(max(self.rowAt(0), 0), last if last >= 0 else model.rowCount() - 1)
