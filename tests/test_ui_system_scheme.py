@@ -61,3 +61,21 @@ def test_a_chosen_scheme_stays_when_the_system_palette_changes(qtbot, tmp_path):
     finally:
         app.setPalette(light)
         win.set_scheme("system")
+
+
+def test_refusals_take_the_schemes_fault_colour(qtbot, tmp_path):
+    # the refusal labels carry their own style (one on the window slows every widget's painting)
+    from PySide6.QtWidgets import QLabel
+    from app.ui.theme import REFUSAL
+    win = open_window(qtbot, tmp_path, FIXTURE)
+    try:
+        for scheme, theme in (("dark", DARK), ("light", LIGHT)):
+            win.set_scheme(scheme)
+            labels = win.findChildren(QLabel, REFUSAL)
+            assert labels
+            for label in labels:
+                label.setText("refused")
+                label.ensurePolished()
+                assert label.palette().color(label.foregroundRole()) == theme.fault
+    finally:
+        win.set_scheme("system")

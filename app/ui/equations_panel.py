@@ -19,6 +19,7 @@ from PySide6.QtWidgets import (QAbstractItemView, QButtonGroup, QComboBox, QHBox
 
 from ..analysis import Equation, LoopError, equations, loop_equation, merged_loop_equation
 from .analysis_state import AnalysisState, guarded
+from .theme import style_refusal
 
 __all__ = ["EquationsPanel", "DIRECTIONS"]
 
@@ -69,7 +70,7 @@ class EquationsPanel(QWidget):
         self.list.itemSelectionChanged.connect(self._selection_changed)
         self.note = QLabel()
         self.note.setWordWrap(True)
-        self.note.setObjectName("refusal")
+        style_refusal(self.note)
 
         self.trace_button = QPushButton("Trace a Loop")
         self.trace_button.setToolTip("Click parts or corners round a loop on the canvas, then press Enter")

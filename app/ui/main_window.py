@@ -9,7 +9,7 @@ from pathlib import Path
 
 from PySide6.QtCore import QEvent, QItemSelection, QItemSelectionModel, QSettings, Qt, QTimer, Signal
 from PySide6.QtGui import QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QUndoStack
-from PySide6.QtWidgets import (QApplication, QDockWidget, QFileDialog, QMainWindow,
+from PySide6.QtWidgets import (QApplication, QDockWidget, QFileDialog, QLabel, QMainWindow,
                                QMessageBox, QToolBar, QToolButton, QVBoxLayout, QWidget)
 
 from ..sketch.fileio import SaveError, SketchFileError, load_sketch, save_sketch
@@ -28,7 +28,7 @@ from .shot import render_scene
 from .solve_worker import LiveSolver, Result
 from .status_line import StatusLine
 from .symbols import IEC, STYLED_KINDS, STYLES
-from .theme import DARK, LIGHT, current_theme, set_theme
+from .theme import DARK, LIGHT, REFUSAL, set_theme, style_refusal
 from .view import SELECT, WIRE, CanvasView
 
 __all__ = ["MainWindow", "run", "FILE_FILTER"]
@@ -419,8 +419,8 @@ class MainWindow(QMainWindow):
 
     def _apply_scheme(self, key: str) -> None:
         set_theme({"light": LIGHT, "dark": DARK}.get(key))
-        th = current_theme()
-        self.setStyleSheet(f"QLabel#refusal {{ color: {th.fault.name()}; font-weight: 600; }}")
+        for label in self.findChildren(QLabel, REFUSAL):
+            style_refusal(label)
 
     def set_scheme(self, key: str) -> None:
         """Use the light or dark scheme, or follow the system palette."""

@@ -20,6 +20,7 @@ from ..sketch.bench_parts import (CELL_PRESETS, DROP_LIMIT_GENERAL, DROP_LIMIT_S
 from ..sketch.kinds import FLAG_LABELS, ValueField, kind_spec
 from ..units import format_value
 from .editor import Editor
+from .theme import style_refusal
 from .valuetext import field_edit_text, field_text, read_field, read_value
 
 __all__ = ["PartPanel", "InlineValueEditor", "read_power_rating", "read_cross_section"]
@@ -28,7 +29,7 @@ __all__ = ["PartPanel", "InlineValueEditor", "read_power_rating", "read_cross_se
 def _error_label() -> QLabel:
     label = QLabel()
     label.setWordWrap(True)
-    label.setObjectName("refusal")
+    style_refusal(label)
     label.setVisible(False)
     return label
 

@@ -10,7 +10,8 @@ from dataclasses import dataclass
 
 from PySide6.QtGui import QColor, QFont, QGuiApplication, QPalette
 
-__all__ = ["Theme", "LIGHT", "DARK", "current_theme", "set_theme", "GRID", "label_font", "small_font"]
+__all__ = ["Theme", "LIGHT", "DARK", "current_theme", "set_theme", "GRID", "label_font", "small_font",
+           "REFUSAL", "style_refusal"]
 
 GRID = 20.0  # scene units per grid step
 
@@ -115,3 +116,17 @@ def label_font(pixels: int = 11) -> QFont:
 def small_font() -> QFont:
     """The font of annotations (currents, drops, potentials)."""
     return label_font(10)
+
+
+REFUSAL = "refusal"  # the object name of labels that say why an input was refused
+
+
+def style_refusal(label) -> None:
+    """Show ``label`` (a QLabel) in the scheme's fault colour, semi-bold, and name it ``REFUSAL``.
+
+    The style sheet is the label's own: one set on the window makes every widget in it paint
+    through Qt's style-sheet style, the Readings table's cells among them (measured 0.3 ms more
+    per repaint of the table).
+    """
+    label.setObjectName(REFUSAL)
+    label.setStyleSheet(f"color: {current_theme().fault.name()}; font-weight: 600;")
