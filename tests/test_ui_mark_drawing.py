@@ -84,7 +84,7 @@ def test_filled_loop_arrow_is_the_arc_a_round_capped_pen_draws():
     # arc (radius 9, from 120° clockwise through 300°, y up). Qt's own stroker flattens its
     # curves by up to half a pixel at this scale, so it is not exact enough to compare with.
     r, h = 9.0, an.LoopMark.PEN / 2
-    band, _ = an._circling(r, True)
+    band, head, arrow = an._circling(r, True)
     drawn = _coverage(_raster(_filled(band))) > 0.5
     ys, xs = np.mgrid[0:drawn.shape[0], 0:drawn.shape[1]]
     x, y = (xs + 0.5) / SCALE - 24, 24 - (ys + 0.5) / SCALE  # y up, as the angles
@@ -100,6 +100,9 @@ def test_filled_loop_arrow_is_the_arc_a_round_capped_pen_draws():
     pts = [(band.at(i).x(), band.at(i).y()) for i in range(band.count())]
     area = abs(sum(x0 * y1 - x1 * y0 for (x0, y0), (x1, y1) in zip(pts, pts[1:] + pts[:1]))) / 2
     assert area == pytest.approx(np.radians(300) * r * 2 * h + np.pi * h * h, rel=0.005)
+    # the mark fills arc and head as one shape: the same pixels as the two filled apart
+    odd, total = _agree(_filled(band, head), _filled(arrow))
+    assert odd < 0.002 * total
 
 
 def test_tag_box_rim_and_inside_cover_a_stroked_rounded_box():
@@ -151,3 +154,35 @@ def test_a_new_value_of_the_same_width_is_drawn_in_place(qtbot, tmp_path):
     fresh_sketch.replace_part("R1", PlacedPart("resistor", "R1", 4, 0, 0, False, {"resistance": 2100.0}))
     fresh = open_window(qtbot, tmp_path / "b", fresh_sketch, size=(1100, 700), centre=(160, 40))
     assert _pixels(fresh, _marks(fresh)) == after  # as a window drawing them from scratch
+
+
+def _canvas_colour(win, scene_x: float, scene_y: float) -> QColor:
+    """The canvas's last painted colour at a scene point (the window's backing store)."""
+    QApplication.processEvents()
+    vp = win.view.viewport()
+    shot = QGuiApplication.primaryScreen().grabWindow(win.winId()).toImage()
+    at = vp.mapTo(win, win.view.mapFromScene(QPointF(scene_x, scene_y)))
+    return QColor(shot.pixel(at.x(), at.y()))
+
+
+def test_connection_dots_are_drawn_where_three_conductors_join(qtbot, tmp_path):
+    from app.ui.theme import GRID, current_theme
+    s = divider()
+    # R3 from R1's right end down onto the bottom wire: three conductors meet at (8, 0),
+    # and its lower end lands on the wire's middle, a T-junction at (8, 4)
+    s.add_part(PlacedPart("resistor", "R3", 8, 0, 90, False, {"resistance": 1000.0}))
+    win = open_window(qtbot, tmp_path, s, size=(1100, 700), centre=(160, 40))
+    ink, paper = current_theme().ink, current_theme().paper
+
+    def near(c: QColor, want: QColor) -> bool:
+        return sum(abs(a - b) for a, b in zip(c.getRgb()[:3], want.getRgb()[:3])) < 60
+
+    # the pixel 1.5 px off both conductors (lines about 1.6 px wide), well inside a dot of radius 3.6
+    for x, y in ((8, 0), (8, 4)):
+        assert near(_canvas_colour(win, x * GRID + 1.5, y * GRID + 1.5), ink)
+    assert near(_canvas_colour(win, 4 * GRID + 1.5, 0 * GRID + 1.5), paper)  # two conductors: no dot
+    win.scene.select(["R3"])
+    win.editor.delete_selection()
+    qtbot.waitUntil(lambda: not win.solver.busy)
+    for x, y in ((8, 0), (8, 4)):
+        assert near(_canvas_colour(win, x * GRID + 1.5, y * GRID + 1.5), paper)  # gone with R3

@@ -652,11 +652,10 @@ class ReadingLayer(QGraphicsItem):
             else:  # loop marks: arc and arrow head, then text
                 painter.setPen(no_pen)
                 painter.setBrush(fill)
-                for band, head, _, _ in figs:
-                    polygon(band)
-                    polygon(head)
+                for f in figs:
+                    polygon(f[0])
                 painter.setPen(pen)
-                for _, _, at, st in figs:
+                for _, at, st in figs:
                     text(at, st)
 
 
@@ -833,7 +832,7 @@ class LoopMark(_HungMark):
             return  # the name alone is shown: nothing drawn changes
         if same_shape and _advance(text) == _advance(old):  # the same box: only the text is new
             self.text = text
-            self._fig = (*fig[:3], _text(text)[0])
+            self._fig = (*fig[:2], _text(text)[0])
             if readable:
                 self.repaint()
             return
@@ -878,20 +877,20 @@ class LoopMark(_HungMark):
         return QRectF(-r, -r, 2 * r, 2 * r).united(self._text_rect)
 
     def _lay_out(self) -> tuple:
-        """(arc, arrow head, text's top left, static text) in scene coordinates; the arc and
-        head are shapes to fill (see ``_outlined`` for why)."""
+        """(arrow, text's top left, static text) in scene coordinates; the arrow (arc and
+        head) is a shape to fill (see ``_outlined`` for why)."""
         x, y = self.pos().x(), self.pos().y()
-        band, head = _circling(self._radius(self.compact), self.clockwise)
-        return (band.translated(x, y), head.translated(x, y),
-                *_centred(self._text_rect.translated(x, y), self.text))
+        arrow = _circling(self._radius(self.compact), self.clockwise)[2]
+        return (arrow.translated(x, y), *_centred(self._text_rect.translated(x, y), self.text))
 
 
-_CIRCLING: dict[tuple[float, bool], tuple[QPolygonF, QPolygonF]] = {}
+_CIRCLING: dict[tuple[float, bool], tuple[QPolygonF, QPolygonF, QPolygonF]] = {}
 
 
-def _circling(r: float, clockwise: bool) -> tuple[QPolygonF, QPolygonF]:
+def _circling(r: float, clockwise: bool) -> tuple[QPolygonF, QPolygonF, QPolygonF]:
     """A loop mark's arrow about the origin: the arc (its gap at the top, drawn by a
-    ``LoopMark.PEN`` wide pen with round caps) and the head at its end, as shapes to fill."""
+    ``LoopMark.PEN`` wide pen with round caps), the head at its end, and both as one
+    shape (one fill per mark), as shapes to fill."""
     key = (r, clockwise)
     hit = _CIRCLING.get(key)
     if hit is None:
@@ -901,7 +900,8 @@ def _circling(r: float, clockwise: bool) -> tuple[QPolygonF, QPolygonF]:
         sgn = 1 if span > 0 else -1  # the tangent along the direction of travel
         tx, ty = -math.sin(end) * sgn, -math.cos(end) * sgn
         head = _arrow_head(r * math.cos(end) + tx * 2, -r * math.sin(end) + ty * 2, tx, ty, 6, LoopMark.PEN)
-        hit = _CIRCLING[key] = (_arc_band(r, start, span, LoopMark.PEN), head)
+        band = _arc_band(r, start, span, LoopMark.PEN)
+        hit = _CIRCLING[key] = (band, head, band.united(head))
     return hit
 
 
