@@ -154,6 +154,17 @@ def test_a_new_value_of_the_same_width_is_drawn_in_place(qtbot, tmp_path):
     fresh_sketch.replace_part("R1", PlacedPart("resistor", "R1", 4, 0, 0, False, {"resistance": 2100.0}))
     fresh = open_window(qtbot, tmp_path / "b", fresh_sketch, size=(1100, 700), centre=(160, 40))
     assert _pixels(fresh, _marks(fresh)) == after  # as a window drawing them from scratch
+    # and nothing else on the canvas is lost: the layer repaints only the region of the
+    # changed marks, drawing the marks that meet it (ReadingLayer._areas)
+    assert _canvas(win) == _canvas(fresh)
+
+
+def _canvas(win) -> QImage:
+    QApplication.processEvents()
+    vp = win.view.viewport()
+    shot = QGuiApplication.primaryScreen().grabWindow(win.winId()).toImage()
+    at = vp.mapTo(win, vp.rect().topLeft())
+    return shot.copy(at.x(), at.y(), vp.width(), vp.height()).convertToFormat(QImage.Format.Format_RGB32)
 
 
 def _canvas_colour(win, scene_x: float, scene_y: float) -> QColor:

@@ -501,8 +501,8 @@ class ReadingLayer(QGraphicsItem):
     hundreds of tiny items each cost a call into Python, a cached picture and a painter of
     their own on every change, where one item drawing them all costs little more than the
     texts and lines themselves. Marks ask for their box to be repainted (``repaint_box``);
-    the layer files them by place (``CELL``) and draws those in the exposed area, group by
-    group (``GROUPS``), each group with one pen and brush.
+    the layer files them by place (``CELL``) and draws those meeting the rectangles being
+    repainted (``_areas``), group by group (``GROUPS``), each group with one pen and brush.
     """
 
     GROUPS = ("currents", "drops", "potentials", "loops")
@@ -519,25 +519,20 @@ class ReadingLayer(QGraphicsItem):
         self._bounds = QRectF()
         self._held: list[tuple[float, float, float, float]] | None = None
 
-    MANY = 40  # more boxes than this in one hold: one repaint of the box around them
+    FEW = 150  # up to this many boxes in one hold are repainted each on its own, more as one box
 
     def repaint_box(self, box: tuple[float, float, float, float]) -> None:
         """Paint a mark's scene box (left, top, right, bottom) again (at the end of a ``hold``)."""
-        left, top, right, bottom = box
-        if right <= left:
+        if box[2] <= box[0]:
             return
         if self._held is not None:
             self._held.append(box)
         else:
-            self.update(QRectF(left, top, right - left, bottom - top))
+            self._repaint([box])
 
     @contextmanager
     def hold(self) -> Iterator[None]:
-        """Gather the marks' repaints over a block (a whole solution laid on the drawing).
-
-        Past ``MANY`` boxes one box around them all is repainted: Qt unites an item's
-        repaint requests into one box anyway, and one request costs less than hundreds.
-        """
+        """Gather the marks' repaints over a block (a whole solution laid on the drawing)."""
         if self._held is not None:
             yield
             return
@@ -546,11 +541,25 @@ class ReadingLayer(QGraphicsItem):
             yield
         finally:
             boxes, self._held = self._held, None
-            if len(boxes) > self.MANY:
-                lefts, tops, rights, bottoms = zip(*boxes)
-                boxes = [(min(lefts), min(tops), max(rights), max(bottoms))]
-            for left, top, right, bottom in boxes:
-                self.update(QRectF(left, top, right - left, bottom - top))
+            self._repaint(boxes)
+
+    def _repaint(self, boxes: list[tuple[float, float, float, float]]) -> None:
+        """Have the views repaint ``boxes``.
+
+        Up to ``FEW`` boxes go to the scene one by one, so a view repaints just their
+        region and ``paint`` draws only the marks meeting it: a new value that changes a
+        few texts spread over the drawing then redraws those, not all in the box around
+        them (an item's own repaint requests are united into one box). Past ``FEW``,
+        clipping every item to that many rectangles costs more than it saves: one box.
+        """
+        scene = self.scene()
+        if not boxes or scene is None:
+            return
+        if len(boxes) > self.FEW:
+            lefts, tops, rights, bottoms = zip(*boxes)
+            boxes = [(min(lefts), min(tops), max(rights), max(bottoms))]
+        for left, top, right, bottom in dict.fromkeys(boxes):
+            scene.update(QRectF(left, top, right - left, bottom - top))
 
     CELL = 256.0  # marks are filed by the cell of their box's top left corner, this size
 
@@ -601,11 +610,29 @@ class ReadingLayer(QGraphicsItem):
         """Nothing of its own: the marks say what they cover."""
         return QRectF()
 
+    MOST_AREAS = 256  # a repainted region of more rectangles is drawn as the box around it
+
+    @classmethod
+    def _areas(cls, painter: QPainter, option: QStyleOptionGraphicsItem,
+               widget: QWidget | None) -> list[tuple[float, float, float, float]]:
+        """The scene areas being repainted (left, top, right, bottom): the rectangles of the
+        region the view repaints (``CanvasView.exposed_region``), or the exposed box."""
+        ex = option.exposedRect
+        view = widget.parentWidget() if widget is not None else None
+        region = getattr(view, "exposed_region", None)
+        if region is None or not 1 < region.rectCount() <= cls.MOST_AREAS:
+            return [(ex.left(), ex.top(), ex.right(), ex.bottom())]
+        to_scene, _ = painter.worldTransform().inverted()
+        areas = []
+        for r in region:
+            a = to_scene.mapRect(QRectF(r))
+            areas.append((a.left(), a.top(), a.right(), a.bottom()))
+        return areas
+
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
         if too_small(painter):
             return
-        ex = option.exposedRect
-        left, top, right, bottom = ex.left(), ex.top(), ex.right(), ex.bottom()
+        areas = self._areas(painter, option, widget)
         th = current_theme()
         painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
         painter.setFont(small_font())
@@ -618,7 +645,11 @@ class ReadingLayer(QGraphicsItem):
         for group, (pen, fill) in enumerate(looks):
             # the figures of the marks in sight; one loop per kind of stroke, with no call per
             # mark but the drawing itself (hundreds of marks are drawn on each repaint)
-            figs = [m._fig or m.figure() for m in self._in_sight(group, left, top, right, bottom)]
+            if len(areas) == 1:
+                marks = self._in_sight(group, *areas[0])
+            else:  # each mark once, however many of the areas it meets
+                marks = list({id(m): m for area in areas for m in self._in_sight(group, *area)}.values())
+            figs = [m._fig or m.figure() for m in marks]
             if not figs:
                 continue
             if group < 2:  # part marks: arrow heads, then texts and lines

@@ -11,7 +11,7 @@ from __future__ import annotations
 import math
 
 from PySide6.QtCore import QPoint, QPointF, QRectF, Qt, Signal
-from PySide6.QtGui import QKeyEvent, QMouseEvent, QPainter, QPen, QPixmapCache, QPolygonF, QWheelEvent
+from PySide6.QtGui import QKeyEvent, QMouseEvent, QPainter, QPaintEvent, QPen, QPixmapCache, QPolygonF, QRegion, QWheelEvent
 from PySide6.QtWidgets import QGraphicsView
 
 from ..sketch.kinds import kind_spec
@@ -372,6 +372,15 @@ class CanvasView(QGraphicsView):
             self.centerOn(rect.center())
 
     # -- background -------------------------------------------------------------------------
+    exposed_region: QRegion | None = None  # while painting: the region being repainted (ReadingLayer reads it)
+
+    def paintEvent(self, event: QPaintEvent) -> None:
+        self.exposed_region = event.region()
+        try:
+            super().paintEvent(event)
+        finally:
+            self.exposed_region = None
+
     def drawBackground(self, painter: QPainter, rect: QRectF) -> None:
         th = current_theme()
         painter.fillRect(rect, th.paper)
