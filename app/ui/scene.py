@@ -474,8 +474,8 @@ class SketchScene(QGraphicsScene):
 
     @staticmethod
     def _overlap(lo: np.ndarray, hi: np.ndarray, cover_lo: np.ndarray, cover_hi: np.ndarray) -> np.ndarray:
-        """Length by which each span [lo, hi] overlaps each cover span (rows: spans, columns: covers)."""
-        return np.maximum(np.minimum(hi[:, None], cover_hi) - np.maximum(lo[:, None], cover_lo), 0.0)
+        """Length by which each span [lo, hi] overlaps each cover span (a last axis of covers)."""
+        return np.maximum(np.minimum(hi[..., None], cover_hi) - np.maximum(lo[..., None], cover_lo), 0.0)
 
     def _place_loop(self, mark: LoopMark) -> None:
         """Put a loop mark where it covers nothing inside its window: near the centre, text on
@@ -497,20 +497,20 @@ class SketchScene(QGraphicsScene):
         box = area if outlined else None
         hx, hy = mark.home.x(), mark.home.y()
         costs, inside = [], []
-        for side, compact in self._LAYOUTS:
+        for compact in (False, True):  # the four sides of a layout at once (``_LAYOUTS`` order)
             steps = np.array(self.COMPACT_STEPS if compact else self.LOOP_STEPS)
-            r = mark.rect_at(side, compact)
-            left, right = hx + steps + r.left(), hx + steps + r.right()
-            top, bottom = hy + steps + r.top(), hy + steps + r.bottom()
-            ox = self._overlap(left, right, covers[:, 0], covers[:, 2])
+            rects = np.array([mark.rect_at(side, compact).getCoords() for side in LoopMark.SIDES])
+            left, top = hx + steps + rects[:, 0:1], hy + steps + rects[:, 1:2]    # [side, step]
+            right, bottom = hx + steps + rects[:, 2:3], hy + steps + rects[:, 3:4]
+            ox = self._overlap(left, right, covers[:, 0], covers[:, 2])     # [side, x step, cover]
             oy = self._overlap(top, bottom, covers[:, 1], covers[:, 3])
-            costs.append(((ox * covers[:, 4]) @ oy.T).ravel())   # [x step, y step]
+            costs.append(((ox * covers[:, 4]) @ oy.transpose(0, 2, 1)).ravel())   # [side, x step, y step]
             if box is None:
-                inside.append(np.ones(len(steps) ** 2, bool))
+                inside.append(np.ones(len(rects) * len(steps) ** 2, bool))
             else:
                 in_x = (left >= box.left()) & (right <= box.right())
                 in_y = (top >= box.top()) & (bottom <= box.bottom())
-                inside.append((in_x[:, None] & in_y[None, :]).ravel())
+                inside.append((in_x[:, :, None] & in_y[:, None, :]).ravel())
         cand = self._candidates()
         flat = cand[:, 3]
         cost = np.concatenate(costs)[flat]
