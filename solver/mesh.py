@@ -111,7 +111,7 @@ def solve(circuit: Circuit, ground: str | None = None) -> Solution:
     wide = len(positive) > 0 and positive.max() > WIDE_SPREAD * positive.min()
     if wide:
         walk = shape.least_resistance_forest(topo)
-        makers = [lambda: shape.windows, lambda: _oriented(fundamental_loops(topo, walk, walk.edge), topo)]
+        makers = [lambda: shape.windows, lambda: shape.fundamental(topo, walk)]
     else:
         walk = shape.bfs_walk(topo)
         makers = [lambda: shape.windows, lambda: shape.fundamental(topo, walk),

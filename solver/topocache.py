@@ -163,10 +163,12 @@ class Shape:
         return least_resistance_forest(topo, self.roots, self._candidates)
 
     def fundamental(self, topo: Topology, walk: Forest) -> LoopSet:
-        """The fundamental loops of ``walk`` (a :meth:`bfs_walk`), clockwise where the drawing allows.
+        """The fundamental loops of ``walk`` (a :meth:`bfs_walk` or :meth:`least_resistance_forest`),
+        clockwise where the drawing allows.
 
-        Kept for the last tree asked for: with parallel branches the tree,
-        and so the loops, can change with the values.
+        Kept for the last tree asked for: with parallel branches, or with a least-resistance
+        tree, the tree and so the loops can change with the values; a new value mostly
+        leaves the tree as it was.
         """
         memo = self._fundamental
         if memo is not None and np.array_equal(memo[0], walk.edge):

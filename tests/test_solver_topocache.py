@@ -155,3 +155,28 @@ def test_large_circuits_and_signed_zero_positions_are_not_kept():
     c.place("p0_0", -0.0, 0.0)   # equal to 0.0 but another number: solved afresh each time
     solve(c, ground="p0_1")
     assert len(CACHE) == 0
+
+
+def test_a_least_resistance_tree_kept_for_its_shape_gives_what_an_empty_cache_gives():
+    # A diagonal part crosses the drawing, so there are no windows; the cell's 0.5 ohm against
+    # kilohms spreads the resistances over more than three decades, so the loops are those of a
+    # least-resistance tree, kept with the shape while a new value leaves the tree as it was.
+    def crossed(shift: float, rx: float = 2200.0) -> Circuit:
+        c = grid(3, 1000.0 + shift)
+        c.resistor("RX", "p0_0", "p2_2", rx)
+        return c
+
+    def fresh(c: Circuit):
+        CACHE.clear()
+        return solve(c, ground="p0_1")
+
+    variants = [crossed(0.0), crossed(7.0), crossed(0.0, 3300.0), crossed(0.0, 0.4), crossed(7.0)]
+    expected = [fresh(c) for c in variants]
+    assert {s.loop_method for s in expected} == {"fundamental"}
+    CACHE.clear()
+    for c, want in zip(variants, expected):   # each after the ones before it, through the cache
+        got = solve(c, ground="p0_1")
+        assert got.currents.tobytes() == want.currents.tobytes()
+        assert got.node_potentials.tobytes() == want.node_potentials.tobytes()
+        assert [(lp.parts, lp.orientation, lp.current.hex()) for lp in got.loops] == \
+            [(lp.parts, lp.orientation, lp.current.hex()) for lp in want.loops]
