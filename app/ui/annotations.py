@@ -284,6 +284,7 @@ class _PartMark(_LayerPainted):
         self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, True)
         self.layer = layer
         self._scene_box = (0.0, 0.0, 0.0, 0.0)  # the box in scene coordinates: left, top, right, bottom
+        self._text_box = (0.0, 0.0, 0.0, 0.0)  # the part of it any text (and its arrow) can take
         self.value: float | None = None
         self._key = ""  # ``_rounded(value)``: what the text and arrow follow
         self._text = ""
@@ -349,7 +350,10 @@ class _PartMark(_LayerPainted):
                 self._text_rect = None
                 self._fig = None
                 if readable:
-                    self.repaint()
+                    if old * value > 0:  # the same direction: only the text line (and its arrow) change
+                        self.layer.repaint_box(self._text_box)
+                    else:
+                        self.repaint()
             else:
                 self.relayout()
         self._show(self._layer_on)
@@ -386,6 +390,8 @@ class _PartMark(_LayerPainted):
             if o.horizontal:
                 slot.adjust(-20, 0, 0, 0)  # the arrow drawn left of the text
             self._bounds = slot.united(self._beside_body()).adjusted(-1, -1, 1, 1)
+            t = slot.adjusted(-1, -1, 1, 1).translated(o.pos())
+            self._text_box = (t.left(), t.top(), t.right(), t.bottom())
         self.layer.place(self, self._bounds.translated(o.pos()))
         self.repaint()
 
