@@ -11,15 +11,7 @@ from app.sketch.netlist import to_circuit
 from app.ui import solve_worker
 from app.ui.solve_worker import solve_sketch
 from solver import CircuitError
-
-
-def sketch_of(parts, wires=()):
-    s = Sketch()
-    for p in parts:
-        s.add_part(p)
-    for w in wires:
-        s.add_wire(Wire(*w))
-    return s
+from test_netlist import sketch_of
 
 
 def bench() -> Sketch:
