@@ -120,46 +120,33 @@ def _rounded_box(rect: QRectF, radius: float, steps: int = 4) -> QPolygonF:
                       for cx, cy, a0 in corners for j in range(steps + 1)])
 
 
-_TEXTS: dict[str, list] = {}  # text -> [the string or its QStaticText, width, handed out yet]
+_TEXTS: dict[str, tuple[QStaticText, float]] = {}
 _TEXTS_KEPT = 4096
 
 
-def _entry(text: str) -> list:
+def _text(text: str) -> tuple[QStaticText, float]:
+    """``text`` laid out for drawing (plain text, no markup) and its width in the marks' font.
+
+    Kept by text: the same values recur all over a drawing and from one solve to the next,
+    and measuring a text costs more than the rest of laying out its mark. A static text
+    is only read when drawn, so marks showing the same text share one.
+    """
     hit = _TEXTS.get(text)
     if hit is None:
         if len(_TEXTS) >= _TEXTS_KEPT:
             _TEXTS.clear()
-        hit = _TEXTS[text] = [text, _fm().horizontalAdvance(text), False]
+        st = QStaticText(text)
+        st.setTextFormat(Qt.TextFormat.PlainText)
+        hit = _TEXTS[text] = (st, _fm().horizontalAdvance(text))
     return hit
-
-
-def _text(text: str) -> tuple[QStaticText | str, float]:
-    """``text`` ready to draw (see ``ReadingLayer.paint``) and its width in the marks' font.
-
-    Kept by text: the same values recur all over a drawing and from one solve to the next,
-    and measuring a text costs more than the rest of laying out its mark. A text asked
-    for the second time is a static text, laid out once and shared by every mark showing
-    it; the first time it is the string itself: laying out a static text and drawing it
-    costs four times drawing the string, and a drag brings new values everywhere, most
-    of them never seen again.
-    """
-    hit = _entry(text)
-    shown = hit[0]
-    if shown.__class__ is str:
-        if hit[2]:
-            shown = hit[0] = QStaticText(text)
-            shown.setTextFormat(Qt.TextFormat.PlainText)
-        else:
-            hit[2] = True
-    return shown, hit[1]
 
 
 def _advance(text: str) -> float:
     """The width of ``text`` in the marks' font."""
-    return _entry(text)[1]
+    return _text(text)[1]
 
 
-def _centred(rect: QRectF, text: str) -> tuple[QPointF, QStaticText | str]:
+def _centred(rect: QRectF, text: str) -> tuple[QPointF, QStaticText]:
     """Where ``text`` goes centred in ``rect`` (as ``drawText`` with AlignCenter), ready to draw."""
     st, advance = _text(text)
     return (QPointF(rect.left() + (rect.width() - advance) / 2,
@@ -660,15 +647,7 @@ class ReadingLayer(QGraphicsItem):
         looks = ((_pen(th.current, 1.4), th.current), (_pen(th.drop, 1.4), th.drop),
                  (_pen(th.potential, 0.9), th.tag), (_pen(th.loop, LoopMark.PEN), th.loop))
         no_pen = Qt.PenStyle.NoPen
-        polygon, static, plain, ascent = painter.drawPolygon, painter.drawStaticText, painter.drawText, _fm().ascent()
-
-        def text(at: QPointF, shown: QStaticText | str) -> None:
-            """A text of ``_text`` with its top left at ``at`` (a string is placed by its baseline)."""
-            if shown.__class__ is str:
-                plain(QPointF(at.x(), at.y() + ascent), shown)
-            else:
-                static(at, shown)
-
+        text, polygon = painter.drawStaticText, painter.drawPolygon
         for group, (pen, fill) in enumerate(looks):
             # the figures of the marks in sight; one loop per kind of stroke, with no call per
             # mark but the drawing itself (hundreds of marks are drawn on each repaint)
