@@ -159,6 +159,23 @@ def test_split_supply_of_forty_volts_each_side_of_ground_is_a_hazard_rail_to_rai
     assert one(cs, "hazardous_potential").figures["voltage"] == pytest.approx(80.0)
 
 
+def test_a_hazard_names_its_points_as_the_solve_report_and_the_equations_do():
+    # the 80 V between the rails of two 40 V cells (KVL); the caution's points carry the labels
+    # the report's node table gives them, so a person finds them in the equations too
+    import re
+    from app.report import solution_table
+    s = two_forty_volt_cells(ground_between=False)
+    net, sol = solved(s)
+    c = one(assess(s, net, sol), "hazardous_potential")
+    named = re.findall(r"(n\d+) \(grid (-?\d+,-?\d+)\)", c.message)
+    assert len(named) == 2
+    assert abs(sol.potential(named[0][1]) - sol.potential(named[1][1])) == pytest.approx(80.0)
+    table = solution_table(sol)
+    for label, pt in named:
+        node = sol.node_of(pt)
+        assert re.search(rf"^{re.escape(node)}\s+{label}\s", table, re.M), (node, label)
+
+
 # -- cells ----------------------------------------------------------------------------------------
 def test_cell_into_a_near_short_is_flagged_and_a_real_load_is_not():
     shorted = cautions(series_loop({"emf": 12.0, "internal_resistance": 0.05},

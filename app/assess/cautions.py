@@ -18,6 +18,7 @@ import numpy as np
 
 from solver import Solution
 
+from ..analysis.branches import node_labels
 from ..sketch.bench_parts import lamp_hot_resistance
 from ..sketch.model import PlacedPart, Sketch
 from ..sketch.netlist import Netlist
@@ -96,6 +97,13 @@ def _hazards(parts: list[PlacedPart], sol: Solution, net: Netlist) -> Iterator[C
     # With every potential within half the limit no point is beyond it, nor two points that far apart.
     if 2.0 * float(np.abs(sol.node_potentials).max(initial=0.0)) <= _OVER_HAZARD:
         return
+    labels = node_labels(sol)
+
+    def named(pt: str) -> str:
+        """A point by its node's label (n1, n2… as in the equations and the solve report) and grid place."""
+        label = labels.get(sol.node_of(pt))
+        return f"{label} (grid {pt})" if label else f"at grid {pt}"
+
     for island in sol.islands:
         points = sorted(island)
         pots = {pt: sol.potential(pt) for pt in points}
@@ -105,7 +113,7 @@ def _hazards(parts: list[PlacedPart], sol: Solution, net: Netlist) -> Iterator[C
             far = max(points, key=lambda pt: abs(pots[pt]))
             if _over_hazard(pots[far]):
                 yield Caution("hazardous_potential", "danger", None,
-                              f"Point {far} is {_v(pots[far], 'V')} from ground, beyond {HAZARD_VOLTAGE:g} V DC: "
+                              f"Point {named(far)} is {_v(pots[far], 'V')} from ground, beyond {HAZARD_VOLTAGE:g} V DC: "
                               "hazardous live (IEC 61010-1).",
                               {"voltage": pots[far], "limit": HAZARD_VOLTAGE}, points=(far,))
         # Between the highest and the lowest point, unless that is the point-to-ground caution
@@ -114,7 +122,7 @@ def _hazards(parts: list[PlacedPart], sol: Solution, net: Netlist) -> Iterator[C
         if not grounded or split:
             if _over_hazard(pots[hi] - pots[lo]):
                 yield Caution("hazardous_potential", "danger", None,
-                              f"Points {hi} and {lo} are {_v(pots[hi] - pots[lo], 'V')} apart, beyond "
+                              f"Points {named(hi)} and {named(lo)} are {_v(pots[hi] - pots[lo], 'V')} apart, beyond "
                               f"{HAZARD_VOLTAGE:g} V DC: hazardous live (IEC 61010-1).",
                               {"voltage": pots[hi] - pots[lo], "limit": HAZARD_VOLTAGE}, points=(hi, lo))
 
