@@ -9,6 +9,8 @@ against Ohm's law for the values.
 from __future__ import annotations
 
 import os
+import sys
+from pathlib import Path
 
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
@@ -208,3 +210,50 @@ def test_connection_dots_are_drawn_where_three_conductors_join(qtbot, tmp_path):
     qtbot.waitUntil(lambda: not win.solver.busy)
     for x, y in ((8, 0), (8, 4)):
         assert near(_canvas_colour(win, x * GRID + 1.5, y * GRID + 1.5), paper)  # gone with R3
+
+
+def _drawn_extent(mark, fig) -> QRectF:
+    """Everything a mark's figure puts on the canvas, in scene coordinates (pens' half widths in)."""
+    fm = an._fm()
+
+    def text_box(at, st) -> QRectF:
+        return QRectF(at.x(), at.y(), fm.horizontalAdvance(st.text()), fm.height())
+
+    group = mark.GROUP
+    if group < 2:
+        at, st, lines, head = fig
+        out = text_box(at, st)
+        shapes = [head] if head is not None else []
+    elif group == 2:
+        leader, edge, inside, at, st = fig
+        out, lines, shapes = text_box(at, st), [leader], [edge, inside]
+    else:
+        arrow, at, st = fig
+        out, lines, shapes = text_box(at, st), [], [arrow]
+    for line in lines:
+        out = out.united(QRectF(line.p1(), line.p2()).normalized().adjusted(-0.75, -0.75, 0.75, 0.75))
+    for shape in shapes:
+        out = out.united(shape.boundingRect())
+    return out
+
+
+@pytest.mark.parametrize("parts", [20, 200])
+def test_every_mark_draws_inside_the_box_it_asks_to_repaint(qtbot, tmp_path, parts):
+    # A repaint covers a mark's box alone (ReadingLayer._repaint); what it draws outside that box
+    # would be wiped by a neighbour's repaint and not drawn again. Antialiasing's half pixel is
+    # the views' own margin (Qt repaints 2 px around every rectangle).
+    sys.path.insert(0, str(Path(__file__).resolve().parent / "bench"))
+    from bench_live import grid_sketch
+    win = open_window(qtbot, tmp_path, grid_sketch(parts), size=(1100, 700))
+    layer = win.scene._readings
+    outside = []
+    for cells in layer._cells:
+        for filed in cells.values():
+            for m in filed.values():
+                if not m._visible:
+                    continue
+                left, top, right, bottom = m._scene_box
+                box = QRectF(left, top, right - left, bottom - top).adjusted(-0.5, -0.5, 0.5, 0.5)
+                if not box.contains(_drawn_extent(m, m.figure())):
+                    outside.append((type(m).__name__, m.text, box, _drawn_extent(m, m.figure())))
+    assert not outside, outside[:3]

@@ -263,6 +263,7 @@ class _PartMark(_LayerPainted):
 
     LINE = 0
     ROOM = 0  # space kept beside the text for an arrow on upright parts
+    ABOVE_BELOW = 0.0  # how far that arrow reaches above and below the text's line
     UNIT = ""
 
     def __init__(self, parent: PartItem, layer: ReadingLayer) -> None:
@@ -376,6 +377,8 @@ class _PartMark(_LayerPainted):
             slot = o.line_rect(self.LINE, w).united(self.text_rect)
             if o.horizontal:
                 slot.adjust(-20, 0, 0, 0)  # the arrow drawn left of the text
+            else:
+                slot.adjust(0, -self.ABOVE_BELOW, 0, self.ABOVE_BELOW)  # an upright arrow beside it
             self._bounds = slot.united(self._beside_body()).adjusted(-1, -1, 1, 1)
             t = slot.adjusted(-1, -1, 1, 1).translated(o.pos())
             self._text_box = (t.left(), t.top(), t.right(), t.bottom())
@@ -435,6 +438,7 @@ class CurrentMark(_PartMark):
 
     LINE = 2
     ROOM = 14
+    ABOVE_BELOW = 5.0  # the arrow runs 8 px either side of the line's middle, its head and pen beyond
     UNIT = "A"
     GROUP = 0
 

@@ -1,0 +1,77 @@
+"""After any run of edits the canvas shows what a full repaint draws: nothing stale, nothing lost.
+
+The canvas repaints only what an edit changed (the marks' boxes, often a region of many
+small rectangles, see ``ReadingLayer._repaint``). Random edits (new values, moves, undo,
+scrolling) are made through the editor; after each one the window's last painted pixels
+are held against a full repaint of the canvas. Antialiased edges where marks overlap may
+come out a shade apart when drawn in pieces, so a pixel counts as wrong only when a colour
+channel is more than 24 levels off (a text or arrow left behind or lost is far more).
+"""
+from __future__ import annotations
+
+import os
+import random
+import sys
+from pathlib import Path
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import numpy as np  # noqa: E402
+import pytest  # noqa: E402
+from PySide6.QtCore import QPointF  # noqa: E402
+from PySide6.QtGui import QGuiApplication, QImage  # noqa: E402
+from PySide6.QtWidgets import QApplication  # noqa: E402
+
+from ui_support import open_window  # noqa: E402
+
+sys.path.insert(0, str(Path(__file__).resolve().parent / "bench"))
+from bench_live import grid_sketch  # noqa: E402
+
+
+def _canvas(win) -> np.ndarray:
+    """The canvas's last painted pixels (the window's backing store) as [y, x, channel]."""
+    QApplication.processEvents()
+    vp = win.view.viewport()
+    shot = QGuiApplication.primaryScreen().grabWindow(win.winId()).toImage()
+    at = vp.mapTo(win, vp.rect().topLeft())
+    im = shot.copy(at.x(), at.y(), vp.width(), vp.height()).convertToFormat(QImage.Format.Format_RGB32)
+    rows = np.frombuffer(im.constBits(), np.uint8).reshape(im.height(), im.bytesPerLine())
+    return rows[:, :4 * im.width()].reshape(im.height(), im.width(), 4).astype(int)
+
+
+def _wrong_after_random_edits(qtbot, tmp_path, parts: int, whole: bool, edits: int) -> list:
+    win = open_window(qtbot, tmp_path, grid_sketch(parts), size=(1100, 700), centre=(80, 60))
+    if whole:
+        win.view.zoom_fit()
+    rng = random.Random(5)
+    names = [p.name for p in win.editor.sketch.parts if p.kind == "resistor"]
+    wrong = []
+    for k in range(edits):
+        op, name = rng.random(), rng.choice(names)
+        if op < 0.5:
+            win.editor.set_values(name, {"resistance": rng.choice([3.3, 10.0, 470.0, 1e3, 1.2e3, 2.2e3, 1e5])})
+        elif op < 0.8:
+            win.scene.select([name])
+            win.editor.nudge(rng.choice([-1, 0, 1]), rng.choice([-1, 0, 1]))
+        elif op < 0.9:
+            win.stack.undo()
+        elif not whole:
+            win.view.centerOn(QPointF(rng.randrange(0, 600), rng.randrange(0, 400)))
+        qtbot.waitUntil(lambda: not win.solver.busy)
+        win.scene.settle_marks()  # marks waiting for a quiet moment take their places now
+        shown = _canvas(win)
+        win.view.viewport().repaint()
+        off = int((np.abs(shown - _canvas(win)).max(axis=2) > 24).sum())
+        if off:
+            wrong.append((k, name, off))
+    return wrong
+
+
+def test_random_edits_on_a_small_sketch_leave_the_canvas_as_a_full_repaint_draws_it(qtbot, tmp_path):
+    assert _wrong_after_random_edits(qtbot, tmp_path, 20, whole=False, edits=60) == []
+
+
+@pytest.mark.slow
+@pytest.mark.parametrize("whole", [False, True])
+def test_random_edits_on_a_large_sketch_leave_the_canvas_as_a_full_repaint_draws_it(qtbot, tmp_path, whole):
+    assert _wrong_after_random_edits(qtbot, tmp_path, 200, whole=whole, edits=150) == []
