@@ -17,13 +17,12 @@ os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 import numpy as np  # noqa: E402
 import pytest  # noqa: E402
 from PySide6.QtCore import QPointF, QRectF, Qt  # noqa: E402
-from PySide6.QtGui import QColor, QGuiApplication, QImage, QPainter, QPen, QPolygonF  # noqa: E402
-from PySide6.QtWidgets import QApplication  # noqa: E402
+from PySide6.QtGui import QColor, QImage, QPainter, QPen, QPolygonF  # noqa: E402
 
 from app.sketch.model import PlacedPart  # noqa: E402
 from app.ui import annotations as an  # noqa: E402
 from test_ui_reading_layer import divider  # noqa: E402
-from ui_support import open_window  # noqa: E402
+from ui_support import open_window, painted_canvas  # noqa: E402
 
 SCALE = 16  # large enough that the edges' antialiasing is a thin share of the shape
 
@@ -119,16 +118,12 @@ def test_tag_box_rim_and_inside_cover_a_stroked_rounded_box():
 
 
 def _pixels(win, marks) -> list[QImage]:
-    """The canvas's last painted pixels under each mark's box (the window's backing store)."""
-    QApplication.processEvents()
-    vp = win.view.viewport()
-    shot = QGuiApplication.primaryScreen().grabWindow(win.winId()).toImage()
-    at = vp.mapTo(win, vp.rect().topLeft())
+    """The canvas's last painted pixels under each mark's box."""
+    image = painted_canvas(win)
     out = []
     for m in marks:
         left, top, right, bottom = m._scene_box
-        box = win.view.mapFromScene(QRectF(left, top, right - left, bottom - top)).boundingRect()
-        out.append(shot.copy(box.translated(at.x(), at.y())).convertToFormat(QImage.Format.Format_RGB32))
+        out.append(image.copy(win.view.mapFromScene(QRectF(left, top, right - left, bottom - top)).boundingRect()))
     return out
 
 
@@ -159,9 +154,9 @@ def test_a_new_value_is_drawn_in_place(qtbot, tmp_path, ohms, texts):
     # what the partial repaints left on screen is what a full repaint of the canvas draws: nothing
     # lost or left behind, though the layer repaints only the region of the changed texts and
     # draws the marks that meet it (ReadingLayer._areas)
-    partial = _canvas(win)
+    partial = painted_canvas(win)
     win.view.viewport().repaint()
-    assert _differing(partial, _canvas(win)) == 0
+    assert _differing(partial, painted_canvas(win)) == 0
 
 
 def _differing(a: QImage, b: QImage) -> int:
@@ -171,22 +166,9 @@ def _differing(a: QImage, b: QImage) -> int:
     return int((rows[0] != rows[1]).sum())
 
 
-def _canvas(win) -> QImage:
-    """The canvas's last painted pixels (the window's backing store)."""
-    QApplication.processEvents()
-    vp = win.view.viewport()
-    shot = QGuiApplication.primaryScreen().grabWindow(win.winId()).toImage()
-    at = vp.mapTo(win, vp.rect().topLeft())
-    return shot.copy(at.x(), at.y(), vp.width(), vp.height()).convertToFormat(QImage.Format.Format_RGB32)
-
-
 def _canvas_colour(win, scene_x: float, scene_y: float) -> QColor:
-    """The canvas's last painted colour at a scene point (the window's backing store)."""
-    QApplication.processEvents()
-    vp = win.view.viewport()
-    shot = QGuiApplication.primaryScreen().grabWindow(win.winId()).toImage()
-    at = vp.mapTo(win, win.view.mapFromScene(QPointF(scene_x, scene_y)))
-    return QColor(shot.pixel(at.x(), at.y()))
+    """The canvas's last painted colour at a scene point."""
+    return QColor(painted_canvas(win).pixel(win.view.mapFromScene(QPointF(scene_x, scene_y))))
 
 
 def test_connection_dots_are_drawn_where_three_conductors_join(qtbot, tmp_path):

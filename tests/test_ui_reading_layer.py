@@ -11,12 +11,11 @@ import os
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
 from PySide6.QtCore import QRectF  # noqa: E402
-from PySide6.QtGui import QColor, QGuiApplication, QImage  # noqa: E402
-from PySide6.QtWidgets import QApplication  # noqa: E402
+from PySide6.QtGui import QColor  # noqa: E402
 
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
 from app.ui.theme import current_theme  # noqa: E402
-from ui_support import open_window  # noqa: E402
+from ui_support import open_window, painted_canvas  # noqa: E402
 
 
 def divider() -> Sketch:
@@ -34,13 +33,7 @@ def divider() -> Sketch:
 def ink_in(win, scene_rect: QRectF, colour: QColor) -> int:
     """Pixels of the canvas inside ``scene_rect`` nearer ``colour`` than the paper (the sum of
     channel differences under 150 of the 400-odd between the mark colours and the paper)."""
-    QApplication.processEvents()  # the canvas repaints what changed, and only that
-    vp = win.view.viewport()
-    # the screen's copy of the window (the offscreen platform's backing store): what was last
-    # painted there, so a region an edit forgot to repaint still shows its old contents
-    shot = QGuiApplication.primaryScreen().grabWindow(win.winId())
-    at = vp.mapTo(win, vp.rect().topLeft())
-    image = shot.toImage().convertToFormat(QImage.Format.Format_RGB32).copy(at.x(), at.y(), vp.width(), vp.height())
+    image = painted_canvas(win)  # what was painted last: the canvas repaints what changed, and only that
     box = win.view.mapFromScene(scene_rect).boundingRect().intersected(image.rect())
     want = (colour.red(), colour.green(), colour.blue())
     n = 0

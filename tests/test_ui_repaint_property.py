@@ -19,22 +19,16 @@ os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 import numpy as np  # noqa: E402
 import pytest  # noqa: E402
 from PySide6.QtCore import QPointF  # noqa: E402
-from PySide6.QtGui import QGuiApplication, QImage  # noqa: E402
-from PySide6.QtWidgets import QApplication  # noqa: E402
 
-from ui_support import open_window  # noqa: E402
+from ui_support import open_window, painted_canvas  # noqa: E402
 
 sys.path.insert(0, str(Path(__file__).resolve().parent / "bench"))
 from bench_live import grid_sketch  # noqa: E402
 
 
 def _canvas(win) -> np.ndarray:
-    """The canvas's last painted pixels (the window's backing store) as [y, x, channel]."""
-    QApplication.processEvents()
-    vp = win.view.viewport()
-    shot = QGuiApplication.primaryScreen().grabWindow(win.winId()).toImage()
-    at = vp.mapTo(win, vp.rect().topLeft())
-    im = shot.copy(at.x(), at.y(), vp.width(), vp.height()).convertToFormat(QImage.Format.Format_RGB32)
+    """The canvas's last painted pixels as [y, x, channel]."""
+    im = painted_canvas(win)
     rows = np.frombuffer(im.constBits(), np.uint8).reshape(im.height(), im.bytesPerLine())
     return rows[:, :4 * im.width()].reshape(im.height(), im.width(), 4).astype(int)
 

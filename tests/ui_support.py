@@ -5,6 +5,7 @@ from pathlib import Path
 
 import pytest
 from PySide6.QtCore import QPointF, QSettings
+from PySide6.QtGui import QGuiApplication, QImage
 from PySide6.QtWidgets import QApplication
 
 from app.sketch.fileio import save_sketch
@@ -46,3 +47,13 @@ def open_window(qtbot, tmp_path: Path, sketch: Sketch | Path | None = None, *, s
     w.view.resetTransform()
     w.view.centerOn(QPointF(*centre))
     return w
+
+
+def painted_canvas(win: MainWindow) -> QImage:
+    """The canvas as last painted, after pending events (the screen's copy of the window, which
+    the offscreen platform keeps): a region an edit forgot to repaint still shows its old contents."""
+    QApplication.processEvents()
+    vp = win.view.viewport()
+    shot = QGuiApplication.primaryScreen().grabWindow(win.winId()).toImage()
+    at = vp.mapTo(win, vp.rect().topLeft())
+    return shot.copy(at.x(), at.y(), vp.width(), vp.height()).convertToFormat(QImage.Format.Format_RGB32)
