@@ -12,7 +12,7 @@ import pytest
 
 pytest.importorskip("pytestqt")
 
-from PySide6.QtCore import QEvent, QObject, Qt  # noqa: E402
+from PySide6.QtCore import QElapsedTimer, QEvent, QObject, Qt  # noqa: E402
 from PySide6.QtGui import QRegion  # noqa: E402
 
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
@@ -73,7 +73,9 @@ def parallel_sketch(r1: float, r2: float) -> Sketch:
 def solved(qtbot, win) -> None:
     qtbot.waitUntil(lambda: win.solver.latest is not None and win.solver.latest.generation == win.solver.generation
                     and not win.solver.busy)
-    qtbot.wait(1)  # let the table repaint
+    # the drawing first: the table repaints its new values once drawing pauses
+    qtbot.waitUntil(lambda: not win.readings.catching_up)
+    qtbot.wait(1)
 
 
 def test_texts_follow_ohms_law_and_a_new_value_repaints_only_the_rows_it_changes(qtbot, tmp_path):
@@ -107,6 +109,37 @@ def test_texts_follow_ohms_law_and_a_new_value_repaints_only_the_rows_it_changes
     # (an update reaches a pixel past its row, so look at the middle of R1's cells)
     assert not any(paints.region.contains(view.visualRect(model.index(model.row_of("R1"), c)).center())
                    for c in (1, 2, 3))
+
+
+def test_while_values_keep_changing_the_table_still_repaints_now_and_then(qtbot):
+    model, names = rows_of(6)
+    view = ReadingsView(model)
+    qtbot.addWidget(view)
+    view.resize(420, 300)
+    view.show()
+    qtbot.waitExposed(view)
+    model.set_readings({n: (0.5e-3, 1.0, 1e-3) for n in names})  # a first fill (the columns are fitted)
+    qtbot.waitUntil(lambda: not view.catching_up)
+    qtbot.wait(1)
+    paints = PaintSpy(view.viewport())
+    cell = view.visualRect(model.index(0, 1))
+    model.set_readings({n: (0.7e-3, 1.0, 1e-3) for n in names})
+    assert view.catching_up and paints.region.isEmpty()  # no event handled yet: the repaint waits
+    timer = QElapsedTimer()
+    timer.start()
+    k = 0
+    # new values every 10 ms, never a pause of CATCH_UP_MS: the table catches up at least
+    # every STALE_MOST_MS all the same, and shows the values it was given last
+    while timer.elapsed() < 3 * ReadingsView.STALE_MOST_MS:
+        k += 1
+        model.set_readings({n: (k * 1e-3, 1.0, 1e-3) for n in names})
+        qtbot.wait(10)
+    assert paints.region.contains(cell.center())
+    qtbot.waitUntil(lambda: not view.catching_up)
+    assert model.data(model.index(0, 1), DISPLAY) == format_value(k * 1e-3, "A")
+    paints.clear()
+    qtbot.wait(ReadingsView.CATCH_UP_MS * 3)
+    assert not paints.region.contains(cell.center())  # nothing left to repaint
 
 
 def rows_of(n: int) -> tuple[ReadingsModel, list[str]]:
