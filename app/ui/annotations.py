@@ -11,8 +11,10 @@ import math
 from collections.abc import Iterator
 from contextlib import contextmanager
 
+import numpy as np
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
-from PySide6.QtGui import QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF, QStaticText, QTextOption
+from PySide6.QtGui import (QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF, QStaticText, QTextOption,
+                           QTransform)
 from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
 
 from ..units import format_value
@@ -503,6 +505,9 @@ class DropMark(_PartMark):
         return at, lines, None
 
 
+_SCALED = QTransform.TransformationType.TxScale.value  # a view's transform that only zooms and scrolls
+
+
 class ReadingLayer(QGraphicsItem):
     """Paints every mark of the solution in one pass: part currents and drops, node
     potential tags and loop currents.
@@ -613,6 +618,19 @@ class ReadingLayer(QGraphicsItem):
                 if m._visible and (b := m._scene_box)[2] >= left and b[0] <= right
                 and b[3] >= top and b[1] <= bottom]
 
+    def _meeting(self, group: int, areas: np.ndarray) -> list:
+        """The visible marks of ``group`` meeting any of ``areas`` (rows of left, top, right,
+        bottom): those in sight of the box around them, tested against every area at once
+        (a move repaints hundreds)."""
+        (left, top, _, _), (_, _, right, bottom) = areas.min(axis=0).tolist(), areas.max(axis=0).tolist()
+        marks = self._in_sight(group, left, top, right, bottom)
+        if not marks:
+            return marks
+        b = np.array([m._scene_box for m in marks])[:, :, None]
+        a = areas.T[None]
+        hit = ((b[:, 2] >= a[:, 0]) & (b[:, 0] <= a[:, 2]) & (b[:, 3] >= a[:, 1]) & (b[:, 1] <= a[:, 3])).any(axis=1)
+        return [m for m, h in zip(marks, hit.tolist()) if h]
+
     def boundingRect(self) -> QRectF:
         return self._bounds
 
@@ -624,20 +642,21 @@ class ReadingLayer(QGraphicsItem):
 
     @classmethod
     def _areas(cls, painter: QPainter, option: QStyleOptionGraphicsItem,
-               widget: QWidget | None) -> list[tuple[float, float, float, float]]:
-        """The scene areas being repainted (left, top, right, bottom): the rectangles of the
-        region the view repaints (``CanvasView.exposed_region``), or the exposed box."""
+               widget: QWidget | None) -> np.ndarray:
+        """The scene areas being repainted, one row (left, top, right, bottom) each: the
+        rectangles of the region the view repaints (``CanvasView.exposed_region``), or the
+        exposed box."""
         ex = option.exposedRect
         view = widget.parentWidget() if widget is not None else None
         region = getattr(view, "exposed_region", None)
-        if region is None or not 1 < region.rectCount() <= cls.MOST_AREAS:
-            return [(ex.left(), ex.top(), ex.right(), ex.bottom())]
-        to_scene, _ = painter.worldTransform().inverted()
-        areas = []
-        for r in region:
-            a = to_scene.mapRect(QRectF(r))
-            areas.append((a.left(), a.top(), a.right(), a.bottom()))
-        return areas
+        t = painter.worldTransform()
+        if region is None or not 1 < region.rectCount() <= cls.MOST_AREAS or t.type().value > _SCALED:
+            return np.array([[ex.left(), ex.top(), ex.right(), ex.bottom()]])
+        # pixel (x1, y1)..(x2, y2) covers x1 to x2 + 1: back to the scene through scale and shift
+        d = np.array([r.getCoords() for r in region], dtype=float) + (0.0, 0.0, 1.0, 1.0)
+        d -= (t.dx(), t.dy(), t.dx(), t.dy())
+        d /= (t.m11(), t.m22(), t.m11(), t.m22())
+        return np.hstack((np.minimum(d[:, :2], d[:, 2:]), np.maximum(d[:, :2], d[:, 2:])))
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
         if too_small(painter):
@@ -655,10 +674,7 @@ class ReadingLayer(QGraphicsItem):
         for group, (pen, fill) in enumerate(looks):
             # the figures of the marks in sight; one loop per kind of stroke, with no call per
             # mark but the drawing itself (hundreds of marks are drawn on each repaint)
-            if len(areas) == 1:
-                marks = self._in_sight(group, *areas[0])
-            else:  # each mark once, however many of the areas it meets
-                marks = list({id(m): m for area in areas for m in self._in_sight(group, *area)}.values())
+            marks = self._in_sight(group, *areas[0].tolist()) if len(areas) == 1 else self._meeting(group, areas)
             figs = [m._fig or m.figure() for m in marks]
             if not figs:
                 continue
