@@ -108,7 +108,7 @@ def test_filled_loop_arrow_is_the_arc_a_round_capped_pen_draws():
 
 def test_tag_box_rim_and_inside_cover_a_stroked_rounded_box():
     rect = QRectF(-20, -8, 40, 16)
-    edge, inside = an._tag_box(rect)
+    _, (edge, inside) = an._tag_box(rect)
     odd, total = _agree(_stroked(lambda p: p.drawRoundedRect(rect, 3, 3), an.PotentialTag.BORDER), _filled(edge))
     assert odd < 0.01 * total
     # the inside leaves the rim uncovered: what the pen drew inside the box's edge, as long as
@@ -205,17 +205,18 @@ def _drawn_extent(mark, fig) -> QRectF:
     if group < 2:
         at, st, lines, head = fig
         out = text_box(at, st)
-        shapes = [head] if head is not None else []
+        stamps = [head] if head is not None else []
     elif group == 2:
-        leader, edge, inside, at, st = fig
-        out, lines, shapes = text_box(at, st), [leader], [edge, inside]
+        leader, box, at, st = fig
+        out, lines, stamps = text_box(at, st), [leader], [box]
     else:
         arrow, at, st = fig
-        out, lines, shapes = text_box(at, st), [], [arrow]
+        out, lines, stamps = text_box(at, st), [], [arrow]
     for line in lines:
         out = out.united(QRectF(line.p1(), line.p2()).normalized().adjusted(-0.75, -0.75, 0.75, 0.75))
-    for shape in shapes:
-        out = out.united(shape.boundingRect())
+    for _, shapes, x, y in stamps:  # a stamp's picture lands within an eighth of a pixel
+        for shape in shapes:
+            out = out.united(shape.boundingRect().translated(x, y).adjusted(-0.125, -0.125, 0.125, 0.125))
     return out
 
 

@@ -19,6 +19,7 @@ from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
 
 from ..units import format_value
 from .items import COVER_TEXT, Z_MARK, Box, box_of, Z_NOTE, PartItem, _paint_warning_sign, too_small
+from .stamps import Stamp, Stamper
 from .theme import current_theme, small_font
 
 __all__ = ["CurrentMark", "DropMark", "ReadingLayer", "PotentialTag", "LoopMark", "FaultNote", "LAYERS"]
@@ -74,20 +75,25 @@ def _head_points(x: float, y: float, dx: float, dy: float, size: float) -> list[
     return [(x, y), (bx + nx, by + ny), (bx - nx, by - ny)]
 
 
-_HEADS: dict[tuple[float, float, float, float], QPolygonF] = {}
+_HEADS: dict[tuple[float, float, float, float], tuple[tuple, tuple[QPolygonF]]] = {}
+
+
+def _head_stamp(x: float, y: float, dx: float, dy: float, size: float = 5.0, pen: float = 1.4) -> Stamp:
+    """A filled arrow head with its tip at (x, y) pointing along the unit vector (dx, dy),
+    taking in the outline of a ``pen`` wide pen (drawn with no pen: see ``_outlined``), as
+    a stamp (see ``stamps``). One shape per direction is worked out, and put in place."""
+    key = (dx, dy, size, pen)
+    hit = _HEADS.get(key)
+    if hit is None:
+        if len(_HEADS) > 256:
+            _HEADS.clear()
+        hit = _HEADS[key] = (("head", *key), (_outlined(_head_points(0.0, 0.0, dx, dy, size), pen),))
+    return hit[0], hit[1], x, y
 
 
 def _arrow_head(x: float, y: float, dx: float, dy: float, size: float = 5.0, pen: float = 1.4) -> QPolygonF:
-    """A filled arrow head with its tip at (x, y) pointing along the unit vector (dx, dy),
-    taking in the outline of a ``pen`` wide pen (drawn with no pen: see ``_outlined``).
-    One shape per direction is worked out; a head is that shape moved into place."""
-    key = (dx, dy, size, pen)
-    shape = _HEADS.get(key)
-    if shape is None:
-        if len(_HEADS) > 256:
-            _HEADS.clear()
-        shape = _HEADS[key] = _outlined(_head_points(0.0, 0.0, dx, dy, size), pen)
-    return shape.translated(x, y)
+    """The head of ``_head_stamp`` as a polygon in place."""
+    return _head_stamp(0.0, 0.0, dx, dy, size, pen)[1][0].translated(x, y)
 
 
 def _arc_band(r: float, start: float, span: float, width: float, step: float = 5.0) -> QPolygonF:
@@ -392,7 +398,7 @@ class _PartMark(_LayerPainted):
         return QRectF()
 
     def _lay_out(self) -> tuple:
-        """(text's top left, static text, lines, arrow head or None) in scene coordinates.
+        """(text's top left, static text, lines, arrow head (a stamp) or None) in scene coordinates.
 
         Where the text goes and the lines beside it follow from the text's width and the
         value's sign alone (``_draw``), and digits are all one width: a new value mostly
@@ -409,7 +415,7 @@ class _PartMark(_LayerPainted):
         return at, st, lines, head
 
     def _draw(self, text: str) -> tuple:
-        """(text's top left, lines, arrow head or None) in scene coordinates for ``text``."""
+        """(text's top left, lines, arrow head (a stamp) or None) in scene coordinates for ``text``."""
         raise NotImplementedError
 
     def boundingRect(self) -> QRectF:
@@ -466,7 +472,7 @@ class CurrentMark(_PartMark):
             mx, my = r.right() - 6, cy + 1
         tip_x, tip_y = mx + 8 * ux, my + 8 * uy
         shaft = QLineF(mx - 8 * ux, my - 8 * uy, tip_x - 3 * ux, tip_y - 3 * uy)
-        return at, [shaft], _arrow_head(tip_x, tip_y, ux, uy)
+        return at, [shaft], _head_stamp(tip_x, tip_y, ux, uy)
 
 
 class DropMark(_PartMark):
@@ -533,6 +539,7 @@ class ReadingLayer(QGraphicsItem):
         self._reach = (0.0, 0.0)  # the widest and the tallest box: how far back from an area to look
         self._bounds = QRectF()
         self._held: list[tuple[float, float, float, float]] | None = None
+        self._stamper = Stamper()  # heads, tag boxes and loop arrows: copied, not filled afresh
 
     FEW = 150  # up to this many boxes in one hold are repainted each on its own, more as one box
 
@@ -669,8 +676,7 @@ class ReadingLayer(QGraphicsItem):
         # outlines and are filled with no pen (see ``_outlined``)
         looks = ((_pen(th.current, 1.4), th.current), (_pen(th.drop, 1.4), th.drop),
                  (_pen(th.potential, 0.9), th.tag), (_pen(th.loop, LoopMark.PEN), th.loop))
-        no_pen = Qt.PenStyle.NoPen
-        text, polygon = painter.drawStaticText, painter.drawPolygon
+        text, stamp = painter.drawStaticText, self._stamper.draw
         for group, (pen, fill) in enumerate(looks):
             # the figures of the marks in sight; one loop per kind of stroke, with no call per
             # mark but the drawing itself (hundreds of marks are drawn on each repaint)
@@ -679,12 +685,7 @@ class ReadingLayer(QGraphicsItem):
             if not figs:
                 continue
             if group < 2:  # part marks: arrow heads, then texts and lines
-                heads = [f[3] for f in figs if f[3] is not None]
-                if heads:
-                    painter.setPen(no_pen)
-                    painter.setBrush(fill)
-                    for head in heads:
-                        polygon(head)
+                stamp(painter, [f[3] for f in figs if f[3] is not None], (fill,))
                 painter.setPen(pen)
                 lines: list[QLineF] = []
                 for at, st, mark_lines, _ in figs:
@@ -696,21 +697,12 @@ class ReadingLayer(QGraphicsItem):
             elif group == 2:  # potential tags: leader lines under the boxes, then box and text
                 painter.setPen(pen)
                 painter.drawLines([f[0] for f in figs])
-                painter.setPen(no_pen)
-                painter.setBrush(th.potential)
-                for f in figs:
-                    polygon(f[1])
-                painter.setBrush(fill)
-                for f in figs:
-                    polygon(f[2])
+                stamp(painter, [f[1] for f in figs], (th.potential, fill))
                 painter.setPen(pen)
                 for f in figs:
-                    text(f[3], f[4])
+                    text(f[2], f[3])
             else:  # loop marks: arc and arrow head, then text
-                painter.setPen(no_pen)
-                painter.setBrush(fill)
-                for f in figs:
-                    polygon(f[0])
+                stamp(painter, [f[0] for f in figs], (fill,))
                 painter.setPen(pen)
                 for _, at, st in figs:
                     text(at, st)
@@ -785,7 +777,7 @@ class PotentialTag(_HungMark):
         fig, same_width = self._fig, _advance(text) == _advance(self.text)
         self.text = text
         if fig is not None and same_width:  # the same box: only the text is new (digits are one width)
-            self._fig = (*fig[:4], _text(text)[0])
+            self._fig = (*fig[:3], _text(text)[0])
             self.repaint()
         else:
             self.set_corner(self._corner)
@@ -816,30 +808,31 @@ class PotentialTag(_HungMark):
         return path
 
     def _lay_out(self) -> tuple:
-        """(leader line, box's edge, box's inside, text's top left, static text) in scene coordinates:
-        the box is two filled shapes, its edge a ``BORDER`` wide rim (see ``_outlined`` for why)."""
+        """(leader line, box, text's top left, static text) in scene coordinates: the box is a
+        stamp of two filled shapes, its edge a ``BORDER`` wide rim and its inside (see ``_outlined``
+        for why a rim is filled, ``stamps`` for how it is drawn)."""
         pos = self.pos()
         r = self._rect.translated(pos)
         corner = QPointF(r.right() if self._corner[0] < 0 else r.left(),
                          r.bottom() if self._corner[1] < 0 else r.top())
-        edge, inside = _tag_box(self._rect)
-        return (QLineF(pos, corner), edge.translated(pos), inside.translated(pos), *_centred(r, self.text))
+        return (QLineF(pos, corner), (*_tag_box(self._rect), pos.x(), pos.y()), *_centred(r, self.text))
 
 
-_BOXES: dict[tuple[float, float, float, float], tuple[QPolygonF, QPolygonF]] = {}
+_BOXES: dict[tuple[float, float, float, float], tuple[tuple, tuple[QPolygonF, QPolygonF]]] = {}
 
 
-def _tag_box(rect: QRectF) -> tuple[QPolygonF, QPolygonF]:
-    """A tag's box (3 px corners, a rim of ``PotentialTag.BORDER``) about its point, as the
-    rim's outer shape and the inside: worked out once per box (tags of like values share one)."""
+def _tag_box(rect: QRectF) -> tuple[tuple, tuple[QPolygonF, QPolygonF]]:
+    """A tag's box (3 px corners, a rim of ``PotentialTag.BORDER``) about its point: a stamp's
+    key and shapes (see ``stamps``), the rim's outer shape and the inside. Worked out once
+    per box (tags of like values share one)."""
     key = (rect.x(), rect.y(), rect.width(), rect.height())
     hit = _BOXES.get(key)
     if hit is None:
         if len(_BOXES) > 1024:
             _BOXES.clear()
         h = PotentialTag.BORDER / 2
-        hit = _BOXES[key] = (_rounded_box(rect.adjusted(-h, -h, h, h), 3 + h),
-                             _rounded_box(rect.adjusted(h, h, -h, -h), 3 - h))
+        hit = _BOXES[key] = (("tag", *key), (_rounded_box(rect.adjusted(-h, -h, h, h), 3 + h),
+                                             _rounded_box(rect.adjusted(h, h, -h, -h), 3 - h)))
     return hit
 
 
@@ -935,10 +928,11 @@ class LoopMark(_HungMark):
 
     def _lay_out(self) -> tuple:
         """(arrow, text's top left, static text) in scene coordinates; the arrow (arc and
-        head) is a shape to fill (see ``_outlined`` for why)."""
+        head) is a stamp of one shape to fill (see ``_outlined`` and ``stamps``)."""
         x, y = self.pos().x(), self.pos().y()
-        arrow = _circling(self._radius(self.compact), self.clockwise)[2]
-        return (arrow.translated(x, y), *_centred(self._text_rect.translated(x, y), self.text))
+        r = self._radius(self.compact)
+        arrow = ("loop", r, self.clockwise), (_circling(r, self.clockwise)[2],), x, y
+        return (arrow, *_centred(self._text_rect.translated(x, y), self.text))
 
 
 _CIRCLING: dict[tuple[float, bool], tuple[QPolygonF, QPolygonF, QPolygonF]] = {}
