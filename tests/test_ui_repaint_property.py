@@ -1,7 +1,8 @@
 """After any run of edits the canvas shows what a full repaint draws: nothing stale, nothing lost.
 
 The canvas repaints only what an edit changed (the marks' boxes, often a region of many
-small rectangles, see ``ReadingLayer._repaint``). Random edits (new values, moves, undo,
+small rectangles, see ``ReadingLayer._repaint``; the paper under a moved part, see
+``items.OnPaper``). Random edits (new values, moves, undo,
 scrolling) are made through the editor; after each one the window's last painted pixels
 are held against a full repaint of the canvas. Antialiased edges where marks overlap may
 come out a shade apart when drawn in pieces, so a pixel counts as wrong only when a colour
@@ -54,6 +55,7 @@ def _wrong_after_random_edits(qtbot, tmp_path, parts: int, whole: bool, edits: i
         qtbot.waitUntil(lambda: not win.solver.busy)
         win.scene.settle_marks()  # marks waiting for a quiet moment take their places now
         shown = _canvas(win)
+        win.view.resetCachedContent()  # the paper with the drawing on it too, painted afresh
         win.view.viewport().repaint()
         off = int((np.abs(shown - _canvas(win)).max(axis=2) > 24).sum())
         if off:

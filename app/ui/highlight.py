@@ -13,11 +13,12 @@ from collections.abc import Iterable, Sequence
 import networkx as nx
 from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QColor, QPainter, QPainterPath, QPainterPathStroker, QPen
-from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
+from PySide6.QtWidgets import QStyleOptionGraphicsItem, QWidget
 
 from solver import Solution
 
 from ..sketch.netlist import Netlist
+from .items import OnPaper
 from .theme import GRID, current_theme, small_font
 
 __all__ = ["Highlight", "loop_segments", "part_segments", "junction_point"]
@@ -89,8 +90,9 @@ def junction_point(net: Netlist, sol: Solution, node: str) -> tuple[float, float
     return None
 
 
-class Highlight(QGraphicsItem):
-    """A band along segments (grid units) and optional rings, with a short label; under the ink."""
+class Highlight(OnPaper):
+    """A band along segments (grid units) and optional rings, with a short label; under the
+    ink, so painted with the paper (``OnPaper``) beneath the wires and parts."""
 
     def __init__(self, dashed: bool = False) -> None:
         super().__init__()
@@ -107,6 +109,7 @@ class Highlight(QGraphicsItem):
     def show_segments(self, segments: Sequence[Segment], label: str = "", thin: Sequence[Segment] = (),
                       rings: Sequence[tuple[float, float]] = ()) -> None:
         """Show ``segments`` as a broad band, ``thin`` as a narrow one, ``rings`` round points."""
+        self.repaper()
         self.prepareGeometryChange()
         self._path = self._make(segments)
         self._thin = self._make(thin)
@@ -125,7 +128,7 @@ class Highlight(QGraphicsItem):
             rect = rect.united(QRectF(self._label_at.x() - 4, self._label_at.y() - 16, 12 * len(label) + 8, 22))
         self._bounds = rect.adjusted(-12, -12, 12, 12)
         self.setVisible(bool(pts))
-        self.update()
+        self.repaper()
 
     def clear(self) -> None:
         self.setVisible(False)

@@ -9,22 +9,23 @@ from __future__ import annotations
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
 from PySide6.QtGui import (QBrush, QColor, QFontMetricsF, QPainter, QPainterPath,
                            QPainterPathStroker, QPen, QPolygonF, QTransform)
-from PySide6.QtWidgets import QGraphicsItem, QStyle, QStyleOptionGraphicsItem, QWidget
+from PySide6.QtWidgets import QGraphicsItem, QGraphicsScene, QStyle, QStyleOptionGraphicsItem, QWidget
 
 from ..sketch.model import PlacedPart, Wire
 from .symbols import IEC, body_centre, paint_part, symbol_outline
 from .theme import GRID, current_theme, label_font
 from .valuetext import value_line
 
-__all__ = ["too_small", "PartItem", "WireItem", "JunctionLayer", "LooseEnd", "RubberWire", "GridCursor",
+__all__ = ["too_small", "OnPaper", "paint_on_paper", "PartItem", "WireItem", "JunctionLayer", "LooseEnd", "RubberWire", "GridCursor",
            "value_text", "to_scene", "box_of", "COVER_TEXT", "COVER_BODY", "CACHE", "Z_WIRE", "Z_PART", "Z_MARK", "Z_NOTE"]
 
 Z_WIRE, Z_PART, Z_DOT, Z_MARK, Z_NOTE, Z_TOOL = 1.0, 2.0, 3.0, 4.0, 6.0, 8.0
 INK_WIDTH = 1.7
 
-# Items of the drawing keep a picture of themselves at screen resolution, so a repaint
-# of the canvas copies pixels for everything an edit did not change (Qt repaints an item
-# only after its update()). A change of scheme must therefore update every item.
+# Small items above the drawing (loose-end rings, bench marks) keep a picture of themselves
+# at screen resolution, so a repaint of the canvas copies pixels for everything an edit did
+# not change (Qt repaints an item only after its update()); parts and wires are painted with
+# the paper instead (``OnPaper``). A change of scheme must therefore update every item.
 CACHE = QGraphicsItem.CacheMode.DeviceCoordinateCache
 
 
@@ -58,6 +59,52 @@ def value_text(part: PlacedPart) -> str:
     return value_line(part)
 
 
+class OnPaper(QGraphicsItem):
+    """An item painted with the paper: the scene paints every such item in its background
+    (``paint_on_paper``), of which each view keeps one picture (``CacheBackground``).
+
+    Copying that picture costs the same whatever it holds, where a picture kept per item
+    costs a copy of each on every repaint: with a few hundred parts in view, most of a
+    repaint that only new readings asked for. The item has no contents of its own (it is
+    still there for hit tests and selection); whatever changes its look calls ``repaper``,
+    and so do its coming, going, selection and visibility. Draw it in ``paint`` as usual.
+    """
+
+    on_paper = True
+
+    def __init__(self) -> None:
+        super().__init__()
+        self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, True)
+
+    def repaper(self) -> None:
+        """Paint the paper under the item again (call before and after a change of its box)."""
+        scene = self.scene()
+        if scene is not None:
+            scene.invalidate(self.sceneBoundingRect(), QGraphicsScene.SceneLayer.BackgroundLayer)
+
+    _REPAPER = (QGraphicsItem.GraphicsItemChange.ItemSceneChange, QGraphicsItem.GraphicsItemChange.ItemSceneHasChanged,
+                QGraphicsItem.GraphicsItemChange.ItemSelectedHasChanged,
+                QGraphicsItem.GraphicsItemChange.ItemVisibleHasChanged)
+
+    def itemChange(self, change: QGraphicsItem.GraphicsItemChange, value):  # noqa: N802 (Qt's name)
+        if change in self._REPAPER:  # (before leaving a scene, it is still in it: the old place)
+            self.repaper()
+        return super().itemChange(change, value)
+
+
+def paint_on_paper(scene: QGraphicsScene, painter: QPainter, rect: QRectF) -> None:
+    """Paint the scene's ``OnPaper`` items meeting scene rect ``rect``, bottom first."""
+    option = QStyleOptionGraphicsItem()
+    selected, plain = QStyle.StateFlag.State_Selected, QStyle.StateFlag.State_None
+    for item in scene.items(rect, Qt.ItemSelectionMode.IntersectsItemBoundingRect, Qt.SortOrder.AscendingOrder):
+        if isinstance(item, OnPaper) and item.on_paper and item.isVisible():
+            option.state = selected if item.isSelected() else plain
+            painter.save()
+            painter.translate(item.pos())
+            item.paint(painter, option, None)
+            painter.restore()
+
+
 def ink_pen(color: QColor, width: float = INK_WIDTH) -> QPen:
     pen = QPen(color, width)
     pen.setCapStyle(Qt.PenCapStyle.RoundCap)
@@ -66,32 +113,45 @@ def ink_pen(color: QColor, width: float = INK_WIDTH) -> QPen:
     return pen
 
 
-class PartItem(QGraphicsItem):
-    """One placed part: its symbol, designator and value; flagged when an error names it."""
+class PartItem(OnPaper):
+    """One placed part: its symbol, designator and value; flagged when an error names it.
+
+    Painted with the paper (``OnPaper``), but for the ghost that follows the pointer while
+    a part is being placed: it paints itself, above everything.
+    """
 
     def __init__(self, part: PlacedPart, style: str = IEC, ghost: bool = False) -> None:
         super().__init__()
         self.style = style
         self.ghost = ghost
+        self.on_paper = not ghost
         self.flagged = False
         self.side = -1
         self.part = part
         self._fm = QFontMetricsF(label_font())
         if not ghost:
             self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemIsSelectable, True)
-            self.setCacheMode(CACHE)
+        else:
+            self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, False)
         self.setZValue(Z_TOOL if ghost else Z_PART)
         self.setAcceptHoverEvents(False)
 
         self._layout()
 
     # -- geometry ---------------------------------------------------------------
+    def repaper(self) -> None:
+        if self.ghost:
+            self.update()
+        else:
+            super().repaper()
+
     def set_part(self, part: PlacedPart) -> None:
         """Show ``part`` (a moved, turned or re-valued version)."""
+        self.repaper()
         self.prepareGeometryChange()
         self.part = part
         self._layout()
-        self.update()
+        self.repaper()
         for child in self.childItems():
             relayout = getattr(child, "relayout", None)
             if relayout:
@@ -99,15 +159,16 @@ class PartItem(QGraphicsItem):
 
     def set_style(self, style: str) -> None:
         self.style = style
-        self.update()
+        self.repaper()
 
     def set_side(self, side: int) -> None:
         """Put the label and marks above/left (-1) or below/right (+1) of the body."""
         if side != self.side:
+            self.repaper()
             self.prepareGeometryChange()
             self.side = side
             self._layout()
-            self.update()
+            self.repaper()
             for child in self.childItems():
                 relayout = getattr(child, "relayout", None)
                 if relayout:
@@ -127,10 +188,11 @@ class PartItem(QGraphicsItem):
 
     def set_flagged(self, flagged: bool) -> None:
         if flagged != self.flagged:
+            self.repaper()
             self.prepareGeometryChange()
             self.flagged = flagged
             self._layout()
-            self.update()
+            self.repaper()
 
     def _layout(self) -> None:
         p = self.part
@@ -239,8 +301,9 @@ def _paint_warning_sign(p: QPainter, at: QPointF, colour: QColor) -> None:
     p.drawPoint(at + QPointF(0, -s * 0.02))
 
 
-class WireItem(QGraphicsItem):
-    """One straight wire; ``index`` is its place in the document's wire list."""
+class WireItem(OnPaper):
+    """One straight wire; ``index`` is its place in the document's wire list. Painted with
+    the paper (``OnPaper``)."""
 
     PICK = 7.0
 
@@ -248,7 +311,6 @@ class WireItem(QGraphicsItem):
         super().__init__()
         self.index = index
         self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemIsSelectable, True)
-        self.setCacheMode(CACHE)
         self.setZValue(Z_WIRE)
         self.wire = wire
         self.flagged = False
@@ -258,13 +320,14 @@ class WireItem(QGraphicsItem):
         """Mark the wire as named by a circuit error (a dashed halo: shape as well as colour)."""
         if flagged != self.flagged:
             self.flagged = flagged
-            self.update()
+            self.repaper()
 
     def set_wire(self, wire: Wire) -> None:
+        self.repaper()
         self.prepareGeometryChange()
         self.wire = wire
         self._layout()
-        self.update()
+        self.repaper()
 
     def _layout(self) -> None:
         w = self.wire

@@ -12,12 +12,12 @@ from contextlib import contextmanager
 
 import numpy as np
 from PySide6.QtCore import QPointF, QRectF, Qt, QTimer, Signal
-from PySide6.QtGui import QPolygonF
+from PySide6.QtGui import QPainter, QPolygonF
 from PySide6.QtWidgets import QGraphicsScene, QStyleOptionGraphicsItem
 
 from ..sketch.model import Sketch
 from .annotations import CurrentMark, DropMark, FaultNote, LoopMark, PotentialTag, ReadingLayer
-from .items import TEXT_LOD, Box, JunctionLayer, LooseEnd, PartItem, WireItem, to_scene
+from .items import TEXT_LOD, Box, JunctionLayer, LooseEnd, PartItem, WireItem, paint_on_paper, to_scene
 from .symbols import IEC
 from .theme import GRID
 
@@ -225,9 +225,15 @@ class SketchScene(QGraphicsScene):
             item.set_style(style)
 
     def refresh_looks(self) -> None:
-        """Repaint every item afresh (after a change of scheme: items keep pictures of themselves)."""
+        """Repaint every item afresh (after a change of scheme: items keep pictures of themselves,
+        and the views one of the paper with the drawing on it)."""
         for item in self.items():
             item.update()
+        self.invalidate(QRectF(), QGraphicsScene.SceneLayer.BackgroundLayer)
+
+    def drawBackground(self, painter: QPainter, rect: QRectF) -> None:  # noqa: N802 (Qt's name)
+        """The drawing's wires and parts, which lie on the paper (``items.OnPaper``)."""
+        paint_on_paper(self, painter, rect)
 
     def set_layer(self, layer: str, on: bool) -> None:
         """Show or hide one layer of annotations."""

@@ -395,7 +395,9 @@ class CanvasView(QGraphicsView):
         painter.setPen(pen)
         nx = int(rect.width() / step) + 2
         ny = int(rect.height() / step) + 2
-        if nx * ny > 60000:
-            return
-        pts = [QPointF(left + i * step, top + j * step) for j in range(ny) for i in range(nx)]
-        painter.drawPoints(QPolygonF(pts))
+        if nx * ny <= 60000:
+            pts = [QPointF(left + i * step, top + j * step) for j in range(ny) for i in range(nx)]
+            painter.drawPoints(QPolygonF(pts))
+        scene = self.scene()
+        if scene is not None:  # the wires and parts lie on the paper (items.OnPaper)
+            scene.drawBackground(painter, rect)
