@@ -109,7 +109,7 @@ class Highlight(OnPaper):
     def show_segments(self, segments: Sequence[Segment], label: str = "", thin: Sequence[Segment] = (),
                       rings: Sequence[tuple[float, float]] = ()) -> None:
         """Show ``segments`` as a broad band, ``thin`` as a narrow one, ``rings`` round points."""
-        self.repaper()
+        was = self.sceneBoundingRect()
         self.prepareGeometryChange()
         self._path = self._make(segments)
         self._thin = self._make(thin)
@@ -128,7 +128,7 @@ class Highlight(OnPaper):
             rect = rect.united(QRectF(self._label_at.x() - 4, self._label_at.y() - 16, 12 * len(label) + 8, 22))
         self._bounds = rect.adjusted(-12, -12, 12, 12)
         self.setVisible(bool(pts))
-        self.repaper()
+        self.repaper(was)
 
     def clear(self) -> None:
         self.setVisible(False)

@@ -76,11 +76,17 @@ class OnPaper(QGraphicsItem):
         super().__init__()
         self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, True)
 
-    def repaper(self) -> None:
-        """Paint the paper under the item again (call before and after a change of its box)."""
+    def repaper(self, was: QRectF | None = None) -> None:
+        """Paint the paper under the item again, and under scene box ``was`` (where it was).
+
+        A change of box calls ``prepareGeometryChange`` first, then this: Qt then brings its
+        box of all items up to date from the changed items alone, where a repaint asked for
+        before would have it measure every item of the scene (hundreds of calls into Python).
+        """
         scene = self.scene()
         if scene is not None:
-            scene.invalidate(self.sceneBoundingRect(), QGraphicsScene.SceneLayer.BackgroundLayer)
+            box = self.sceneBoundingRect()
+            scene.invalidate(box if was is None else box.united(was), QGraphicsScene.SceneLayer.BackgroundLayer)
 
     _REPAPER = (QGraphicsItem.GraphicsItemChange.ItemSceneChange, QGraphicsItem.GraphicsItemChange.ItemSceneHasChanged,
                 QGraphicsItem.GraphicsItemChange.ItemSelectedHasChanged,
@@ -139,19 +145,19 @@ class PartItem(OnPaper):
         self._layout()
 
     # -- geometry ---------------------------------------------------------------
-    def repaper(self) -> None:
+    def repaper(self, was: QRectF | None = None) -> None:
         if self.ghost:
             self.update()
         else:
-            super().repaper()
+            super().repaper(was)
 
     def set_part(self, part: PlacedPart) -> None:
         """Show ``part`` (a moved, turned or re-valued version)."""
-        self.repaper()
+        was = self.sceneBoundingRect()
         self.prepareGeometryChange()
         self.part = part
         self._layout()
-        self.repaper()
+        self.repaper(was)
         for child in self.childItems():
             relayout = getattr(child, "relayout", None)
             if relayout:
@@ -164,11 +170,11 @@ class PartItem(OnPaper):
     def set_side(self, side: int) -> None:
         """Put the label and marks above/left (-1) or below/right (+1) of the body."""
         if side != self.side:
-            self.repaper()
+            was = self.sceneBoundingRect()
             self.prepareGeometryChange()
             self.side = side
             self._layout()
-            self.repaper()
+            self.repaper(was)
             for child in self.childItems():
                 relayout = getattr(child, "relayout", None)
                 if relayout:
@@ -188,11 +194,11 @@ class PartItem(OnPaper):
 
     def set_flagged(self, flagged: bool) -> None:
         if flagged != self.flagged:
-            self.repaper()
+            was = self.sceneBoundingRect()
             self.prepareGeometryChange()
             self.flagged = flagged
             self._layout()
-            self.repaper()
+            self.repaper(was)
 
     def _layout(self) -> None:
         p = self.part
@@ -323,11 +329,11 @@ class WireItem(OnPaper):
             self.repaper()
 
     def set_wire(self, wire: Wire) -> None:
-        self.repaper()
+        was = self.sceneBoundingRect()
         self.prepareGeometryChange()
         self.wire = wire
         self._layout()
-        self.repaper()
+        self.repaper(was)
 
     def _layout(self) -> None:
         w = self.wire
