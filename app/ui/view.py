@@ -11,7 +11,7 @@ from __future__ import annotations
 import math
 
 from PySide6.QtCore import QPoint, QPointF, QRectF, Qt, Signal
-from PySide6.QtGui import QKeyEvent, QMouseEvent, QPainter, QPaintEvent, QPen, QPixmapCache, QPolygonF, QRegion, QWheelEvent
+from PySide6.QtGui import QKeyEvent, QMouseEvent, QPainter, QPaintEvent, QPen, QPolygonF, QRegion, QWheelEvent
 from PySide6.QtWidgets import QGraphicsView
 
 from ..sketch.kinds import kind_spec
@@ -26,9 +26,6 @@ __all__ = ["CanvasView", "SELECT", "WIRE"]
 
 SELECT = "select"
 WIRE = "wire"
-# Room for the items' pictures (items.CACHE): at Qt's default of 10 MB a few hundred parts
-# on screen push each other out and every repaint draws them all again.
-PIXMAP_CACHE_KB = 96 * 1024
 GridPoint = tuple[int, int]
 
 
@@ -50,7 +47,6 @@ class CanvasView(QGraphicsView):
         self.setRubberBandSelectionMode(Qt.ItemSelectionMode.IntersectsItemShape)
         self.setMouseTracking(True)
         self.setCacheMode(QGraphicsView.CacheModeFlag.CacheBackground)
-        QPixmapCache.setCacheLimit(max(QPixmapCache.cacheLimit(), PIXMAP_CACHE_KB))
         self.setFocusPolicy(Qt.FocusPolicy.StrongFocus)
         self.editor: Editor | None = None
         self.mode = SELECT
