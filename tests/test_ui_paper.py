@@ -17,7 +17,8 @@ from PySide6.QtCore import QPointF, QRectF  # noqa: E402
 from PySide6.QtGui import QColor  # noqa: E402
 
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
-from app.ui.theme import GRID, current_theme  # noqa: E402
+from app.ui.items import OnPaper  # noqa: E402
+from app.ui.theme import DARK, GRID, LIGHT, current_theme  # noqa: E402
 from ui_support import open_window, painted_canvas  # noqa: E402
 
 
@@ -41,8 +42,12 @@ def _pixels(win) -> np.ndarray:
 
 
 def _stale(win) -> int:
-    """Pixels the canvas shows more than a shade apart from a repaint from nothing."""
+    """Pixels the canvas shows more than a shade apart from a repaint from nothing (the
+    paper and every item's kept picture of itself painted afresh)."""
     shown = _pixels(win)
+    for item in win.scene.items():
+        if isinstance(item, OnPaper):
+            item._pictures.clear()
     win.view.resetCachedContent()
     win.view.viewport().repaint()
     return int((np.abs(shown - _pixels(win)).max(axis=2) > 24).sum())
@@ -146,3 +151,39 @@ def test_the_ghost_of_a_part_being_placed_paints_itself(qtbot, tmp_path):
         ghost = win.view._ghost
     assert ghost is not None and not ghost.on_paper
     assert _colour_near(win, ghost.sceneBoundingRect(), current_theme().ghost) > 10
+
+
+def test_a_change_of_scheme_repaints_the_drawing_in_the_new_ink(qtbot, tmp_path):
+    win = open_window(qtbot, tmp_path, loop_sketch(), size=(900, 600), centre=(6 * GRID, 2 * GRID))
+    win.set_scheme("light")
+    _solved(qtbot, win)
+    item = win.scene.part_items["R1"]
+    body = item.mapRectToScene(item.outline.adjusted(8, 2, -8, -2))
+    # (the dark paper lies within 25 levels of the light ink: compare closely)
+    inked = _colour_near(win, body, LIGHT.ink, 12)
+    assert inked > 10
+    win.set_scheme("dark")
+    _solved(qtbot, win)
+    # the symbol in the dark scheme's ink; of the light ink, only a few edge shades of dark on dark
+    assert _colour_near(win, body, DARK.ink, 12) > 10 and _colour_near(win, body, LIGHT.ink, 12) < inked / 4
+    assert _stale(win) == 0
+    win.set_scheme("light")
+
+
+def test_a_picture_file_draws_every_shape_afresh(qtbot, tmp_path, monkeypatch):
+    # A PNG is drawn at its own scale with every shape filled and every part painted where
+    # it lies; the pictures a view copies in land up to an eighth of a pixel off, which
+    # would show here as hundreds of pixels a shade apart.
+    from pathlib import Path
+
+    import app.ui.annotations as an
+    import app.ui.items as items
+    from app.ui.shot import render
+    from PySide6.QtGui import QImage
+    demo = Path(__file__).resolve().parents[1] / "demo_circuits" / "market_stall_lamps.lwsk"
+    render(demo, tmp_path / "shot.png")
+    monkeypatch.setattr(items, "copies", lambda painter: False)  # no copying anywhere: all afresh
+    monkeypatch.setattr(an.Stamper, "draw", lambda self, p, stamps, colours, exact=False:
+                        self._fill(p, stamps, colours) if stamps else None)
+    render(demo, tmp_path / "afresh.png")
+    assert QImage(str(tmp_path / "shot.png")) == QImage(str(tmp_path / "afresh.png"))

@@ -676,7 +676,11 @@ class ReadingLayer(QGraphicsItem):
         # outlines and are filled with no pen (see ``_outlined``)
         looks = ((_pen(th.current, 1.4), th.current), (_pen(th.drop, 1.4), th.drop),
                  (_pen(th.potential, 0.9), th.tag), (_pen(th.loop, LoopMark.PEN), th.loop))
-        text, stamp = painter.drawStaticText, self._stamper.draw
+        text, draw = painter.drawStaticText, self._stamper.draw
+        exact = getattr(self.scene(), "drawn_exactly", False)
+
+        def stamp(p: QPainter, stamps: list, colours: tuple) -> None:
+            draw(p, stamps, colours, exact)
         for group, (pen, fill) in enumerate(looks):
             # the figures of the marks in sight; one loop per kind of stroke, with no call per
             # mark but the drawing itself (hundreds of marks are drawn on each repaint)

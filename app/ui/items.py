@@ -6,12 +6,15 @@ is turned.
 """
 from __future__ import annotations
 
+from dataclasses import replace
+
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
 from PySide6.QtGui import (QBrush, QColor, QFontMetricsF, QPainter, QPainterPath,
-                           QPainterPathStroker, QPen, QPolygonF, QTransform)
+                           QPainterPathStroker, QPen, QPixmap, QPolygonF, QTransform)
 from PySide6.QtWidgets import QGraphicsItem, QGraphicsScene, QStyle, QStyleOptionGraphicsItem, QWidget
 
 from ..sketch.model import PlacedPart, Wire
+from .stamps import Stamper, anchor, copies, picture
 from .symbols import IEC, body_centre, paint_part, symbol_outline
 from .theme import GRID, current_theme, label_font
 from .valuetext import value_line
@@ -71,22 +74,54 @@ class OnPaper(QGraphicsItem):
     """
 
     on_paper = True
+    KEPT = 4  # pictures kept of the item (zooms, pixel offsets, selected or not)
 
     def __init__(self) -> None:
         super().__init__()
         self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, True)
+        self._pictures: dict[tuple, tuple[QPixmap, int, int]] = {}
 
-    def repaper(self, was: QRectF | None = None) -> None:
-        """Paint the paper under the item again, and under scene box ``was`` (where it was).
+    def repaper(self, was: QRectF | None = None, moved_only: bool = False) -> None:
+        """Paint the paper under the item again, and under scene box ``was`` (where it was);
+        ``moved_only`` says the item looks as it did (its pictures still serve).
 
         A change of box calls ``prepareGeometryChange`` first, then this: Qt then brings its
         box of all items up to date from the changed items alone, where a repaint asked for
         before would have it measure every item of the scene (hundreds of calls into Python).
         """
+        if not moved_only:
+            self._pictures.clear()
         scene = self.scene()
         if scene is not None:
             box = self.sceneBoundingRect()
             scene.invalidate(box if was is None else box.united(was), QGraphicsScene.SceneLayer.BackgroundLayer)
+
+    def paint_on(self, painter: QPainter, option: QStyleOptionGraphicsItem, exact: bool = False) -> None:
+        """Paint the item in its place on the paper: a kept picture of it at this zoom (the
+        paper under a moved part also repaints its neighbours), or afresh where pictures
+        cannot be copied (a vector file) or ``exact`` asks for it (a picture file)."""
+        x, y = self.pos().x(), self.pos().y()
+        if exact or not copies(painter):
+            painter.save()
+            painter.translate(x, y)
+            self.paint(painter, option, None)
+            painter.restore()
+            return
+        t, dpr = painter.worldTransform(), painter.device().devicePixelRatioF()
+        ix, iy, fx, fy = anchor(t, dpr, x, y)
+        key = (t.m11(), t.m22(), dpr, fx, fy, bool(option.state & QStyle.StateFlag.State_Selected))
+        hit = self._pictures.get(key)
+        if hit is None:
+            if len(self._pictures) >= self.KEPT:
+                self._pictures.clear()
+            p = Stamper.PHASES
+            hit = self._pictures[key] = picture(lambda q: self.paint(q, option, None), self.boundingRect(),
+                                                t.m11(), t.m22(), fx / p, fy / p, dpr)
+        pm, left, top = hit
+        painter.save()
+        painter.resetTransform()
+        painter.drawPixmap(QPointF((ix + left) / dpr, (iy + top) / dpr), pm)
+        painter.restore()
 
     _REPAPER = (QGraphicsItem.GraphicsItemChange.ItemSceneChange, QGraphicsItem.GraphicsItemChange.ItemSceneHasChanged,
                 QGraphicsItem.GraphicsItemChange.ItemSelectedHasChanged,
@@ -98,17 +133,15 @@ class OnPaper(QGraphicsItem):
         return super().itemChange(change, value)
 
 
-def paint_on_paper(scene: QGraphicsScene, painter: QPainter, rect: QRectF) -> None:
-    """Paint the scene's ``OnPaper`` items meeting scene rect ``rect``, bottom first."""
+def paint_on_paper(scene: QGraphicsScene, painter: QPainter, rect: QRectF, exact: bool = False) -> None:
+    """Paint the scene's ``OnPaper`` items meeting scene rect ``rect``, bottom first (``exact``:
+    each afresh, as for a picture file, not from the pictures they keep)."""
     option = QStyleOptionGraphicsItem()
     selected, plain = QStyle.StateFlag.State_Selected, QStyle.StateFlag.State_None
     for item in scene.items(rect, Qt.ItemSelectionMode.IntersectsItemBoundingRect, Qt.SortOrder.AscendingOrder):
         if isinstance(item, OnPaper) and item.on_paper and item.isVisible():
             option.state = selected if item.isSelected() else plain
-            painter.save()
-            painter.translate(item.pos())
-            item.paint(painter, option, None)
-            painter.restore()
+            item.paint_on(painter, option, exact)
 
 
 def ink_pen(color: QColor, width: float = INK_WIDTH) -> QPen:
@@ -145,19 +178,19 @@ class PartItem(OnPaper):
         self._layout()
 
     # -- geometry ---------------------------------------------------------------
-    def repaper(self, was: QRectF | None = None) -> None:
+    def repaper(self, was: QRectF | None = None, moved_only: bool = False) -> None:
         if self.ghost:
             self.update()
         else:
-            super().repaper(was)
+            super().repaper(was, moved_only)
 
     def set_part(self, part: PlacedPart) -> None:
         """Show ``part`` (a moved, turned or re-valued version)."""
-        was = self.sceneBoundingRect()
+        was, old = self.sceneBoundingRect(), self.part
         self.prepareGeometryChange()
         self.part = part
         self._layout()
-        self.repaper(was)
+        self.repaper(was, moved_only=replace(old, x=part.x, y=part.y) == part)
         for child in self.childItems():
             relayout = getattr(child, "relayout", None)
             if relayout:

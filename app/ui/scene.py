@@ -17,7 +17,7 @@ from PySide6.QtWidgets import QGraphicsScene, QStyleOptionGraphicsItem
 
 from ..sketch.model import Sketch
 from .annotations import CurrentMark, DropMark, FaultNote, LoopMark, PotentialTag, ReadingLayer
-from .items import TEXT_LOD, Box, JunctionLayer, LooseEnd, PartItem, WireItem, paint_on_paper, to_scene
+from .items import TEXT_LOD, Box, JunctionLayer, LooseEnd, OnPaper, PartItem, WireItem, paint_on_paper, to_scene
 from .symbols import IEC
 from .theme import GRID
 
@@ -228,12 +228,16 @@ class SketchScene(QGraphicsScene):
         """Repaint every item afresh (after a change of scheme: items keep pictures of themselves,
         and the views one of the paper with the drawing on it)."""
         for item in self.items():
-            item.update()
-        self.invalidate(QRectF(), QGraphicsScene.SceneLayer.BackgroundLayer)
+            if isinstance(item, OnPaper):
+                item.repaper()  # its pictures are of the old colours
+            else:
+                item.update()
+
+    drawn_exactly = False  # True while a picture file is made: every shape drawn afresh (shot.py)
 
     def drawBackground(self, painter: QPainter, rect: QRectF) -> None:  # noqa: N802 (Qt's name)
         """The drawing's wires and parts, which lie on the paper (``items.OnPaper``)."""
-        paint_on_paper(self, painter, rect)
+        paint_on_paper(self, painter, rect, self.drawn_exactly)
 
     def set_layer(self, layer: str, on: bool) -> None:
         """Show or hide one layer of annotations."""

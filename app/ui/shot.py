@@ -36,15 +36,18 @@ def ensure_app() -> QApplication:
 
 @contextmanager
 def _drawn_afresh(scene: SketchScene) -> Iterator[None]:
-    """Items paint themselves while the picture is made, not their cached screen pixels,
-    so an SVG holds lines and text and a PNG is drawn at its own resolution."""
+    """Items paint themselves while the picture is made, not their cached screen pixels
+    (nor the pictures of parts and shapes a view copies in, ``drawn_exactly``), so an SVG
+    holds lines and text and a PNG is drawn at its own resolution, to the last pixel."""
     items = scene.items()
     modes = [i.cacheMode() for i in items]
     for i in items:
         i.setCacheMode(QGraphicsItem.CacheMode.NoCache)
+    scene.drawn_exactly = True
     try:
         yield
     finally:
+        scene.drawn_exactly = False
         for i, mode in zip(items, modes):
             i.setCacheMode(mode)
 

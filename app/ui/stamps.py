@@ -16,13 +16,13 @@ Only raster painting under a zoom-and-scroll transform copies pictures; anything
 from __future__ import annotations
 
 import math
-from collections.abc import Hashable, Sequence
+from collections.abc import Callable, Hashable, Sequence
 
 import numpy as np
-from PySide6.QtCore import QPointF, Qt
+from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QColor, QImage, QPaintEngine, QPainter, QPixmap, QPolygonF, QTransform
 
-__all__ = ["Stamp", "Stamper"]
+__all__ = ["Stamp", "Stamper", "picture", "anchor", "copies"]
 
 Stamp = tuple[Hashable, Sequence[QPolygonF], float, float]
 _SCALED = QTransform.TransformationType.TxScale.value  # zoom and scroll only
@@ -38,16 +38,15 @@ class Stamper:
         self._scale: tuple[float, float, float] | None = None
         self._kept: dict[tuple[int, ...], dict[tuple, tuple[QPixmap, int, int]]] = {}
 
-    def draw(self, painter: QPainter, stamps: Sequence[Stamp], colours: Sequence[QColor]) -> None:
-        """Fill every stamp's shapes, the k-th in ``colours[k]``, as ``painter`` would fill them."""
+    def draw(self, painter: QPainter, stamps: Sequence[Stamp], colours: Sequence[QColor], exact: bool = False) -> None:
+        """Fill every stamp's shapes, the k-th in ``colours[k]``, as ``painter`` would fill them
+        (``exact``: fill them, as for a picture file, where an eighth of a pixel matters more)."""
         if not stamps:
             return
-        t = painter.worldTransform()
-        engine = painter.paintEngine()
-        if engine is None or engine.type() != QPaintEngine.Type.Raster or t.type().value > _SCALED \
-                or t.m11() <= 0 or t.m22() <= 0:
+        if exact or not copies(painter):
             self._fill(painter, stamps, colours)
             return
+        t = painter.worldTransform()
         sx, sy, dpr = t.m11(), t.m22(), painter.device().devicePixelRatioF()
         if (sx, sy, dpr) != self._scale:  # a new zoom: the pictures of the last are no use
             self._scale = (sx, sy, dpr)
@@ -91,19 +90,51 @@ def _picture(shapes: Sequence[QPolygonF], colours: Sequence[QColor], kx: float, 
     box = shapes[0].boundingRect()
     for shape in shapes[1:]:
         box = box.united(shape.boundingRect())
+
+    def fill(painter: QPainter) -> None:
+        painter.setPen(Qt.PenStyle.NoPen)
+        for shape, colour in zip(shapes, colours):
+            painter.setBrush(colour)
+            painter.drawPolygon(shape)
+    return picture(fill, box, kx / dpr, ky / dpr, fx, fy, dpr)
+
+
+def picture(draw: Callable[[QPainter], None], box: QRectF, sx: float, sy: float,
+            fx: float, fy: float, dpr: float) -> tuple[QPixmap, int, int]:
+    """What ``draw`` paints inside ``box`` (scene units about an origin, antialiased) at a
+    zoom of ``sx``, ``sy`` on a screen of pixel ratio ``dpr``, with the origin at (fx, fy)
+    within a device pixel; and where the picture's corner lies from that pixel (device pixels).
+
+    The painter ``draw`` gets has the zoom as its transform (the pixel ratio is the
+    picture's own, as on a screen), so level-of-detail tests see what a view's would."""
+    kx, ky = sx * dpr, sy * dpr
     left, top = math.floor(fx + box.left() * kx) - 1, math.floor(fy + box.top() * ky) - 1
     right, bottom = math.ceil(fx + box.right() * kx) + 1, math.ceil(fy + box.bottom() * ky) + 1
     image = QImage(right - left, bottom - top, QImage.Format.Format_ARGB32_Premultiplied)
     image.fill(0)
+    image.setDevicePixelRatio(dpr)
     painter = QPainter(image)
     painter.setRenderHint(QPainter.RenderHint.Antialiasing, True)
-    painter.setPen(Qt.PenStyle.NoPen)
-    painter.translate(fx - left, fy - top)
-    painter.scale(kx, ky)
-    for shape, colour in zip(shapes, colours):
-        painter.setBrush(colour)
-        painter.drawPolygon(shape)
+    painter.translate((fx - left) / dpr, (fy - top) / dpr)
+    painter.scale(sx, sy)
+    draw(painter)
     painter.end()
-    pm = QPixmap.fromImage(image)
-    pm.setDevicePixelRatio(dpr)
-    return pm, left, top
+    return QPixmap.fromImage(image), left, top
+
+
+def anchor(t: QTransform, dpr: float, x: float, y: float) -> tuple[int, int, int, int]:
+    """The device pixel (ix, iy) that scene point (x, y) falls in under ``t`` on a screen of
+    pixel ratio ``dpr``, and its offset in that pixel in ``Stamper.PHASES`` steps (fx, fy)."""
+    p = Stamper.PHASES
+    qx = math.floor((x * t.m11() + t.dx()) * dpr * p + 0.5)
+    qy = math.floor((y * t.m22() + t.dy()) * dpr * p + 0.5)
+    return qx // p, qy // p, qx % p, qy % p
+
+
+def copies(painter: QPainter) -> bool:
+    """True when ``painter`` paints pixels under a zoom-and-scroll transform: pictures can be
+    copied in (not for a vector file or a turned painter)."""
+    t = painter.worldTransform()
+    engine = painter.paintEngine()
+    return engine is not None and engine.type() == QPaintEngine.Type.Raster and t.type().value <= _SCALED \
+        and t.m11() > 0 and t.m22() > 0
