@@ -75,7 +75,7 @@ class Shape:
     """
 
     __slots__ = ("_fields", "_values", "ground_node", "roots", "own", "windows", "_parallel", "_candidates",
-                 "_walk", "_fundamental")
+                 "_walk", "_fundamental", "_least")
 
     def __init__(self, topo: Topology, ground_node: int, roots: np.ndarray, own: tuple[int, ...],
                  windows: LoopSet | None) -> None:
@@ -96,6 +96,7 @@ class Shape:
         self._candidates: tuple[np.ndarray, ...] | None = None
         self._walk: tuple[np.ndarray, Forest | None] | None = None
         self._fundamental: tuple[np.ndarray, LoopSet] | None = None
+        self._least: tuple[np.ndarray, Forest] | None = None  # resistance order, its least-resistance tree
 
     def _has_parallel(self, topo: Topology) -> bool:
         """Whether branches run in parallel: then the trees' edges among them depend on the resistances."""
@@ -151,16 +152,26 @@ class Shape:
     def least_resistance_forest(self, topo: Topology) -> Forest:
         """``graph.least_resistance_forest(topo, roots)`` for ``topo`` (of this shape).
 
-        Without parallel branches the candidate edges follow from the shape
-        and are worked out once; the tree itself depends on the resistances.
+        The tree depends on the resistances only through their order (its weights are
+        ranks), so it is kept for the last order seen: a move leaves every value as it was,
+        and a new value mostly leaves the order too. Without parallel branches the
+        candidate edges follow from the shape and are worked out once.
         """
+        order = np.argsort(topo.br_r, kind="stable")
+        memo = self._least
+        if memo is not None and np.array_equal(memo[0], order):
+            return memo[1]
         if self._has_parallel(topo):
-            return least_resistance_forest(topo, self.roots)
-        if self._candidates is None:
-            candidates = mst_candidates(topo.n_nodes, topo.br_u, topo.br_v, None)
-            _freeze(*candidates)
-            self._candidates = candidates
-        return least_resistance_forest(topo, self.roots, self._candidates)
+            forest = least_resistance_forest(topo, self.roots)
+        else:
+            if self._candidates is None:
+                candidates = mst_candidates(topo.n_nodes, topo.br_u, topo.br_v, None)
+                _freeze(*candidates)
+                self._candidates = candidates
+            forest = least_resistance_forest(topo, self.roots, self._candidates)
+        _freeze(order, forest.parent, forest.edge, forest.depth)  # shared from now on: never changed
+        self._least = (order, forest)
+        return forest
 
     def fundamental(self, topo: Topology, walk: Forest) -> LoopSet:
         """The fundamental loops of ``walk`` (a :meth:`bfs_walk` or :meth:`least_resistance_forest`),
