@@ -144,7 +144,7 @@ def test_loop_marks_after_a_value_edit_are_those_worked_out_afresh():
     solve_sketch(s)
     s.update_part("R2", values={"resistance": 300.0})
     kept = solve_sketch(s)
-    solve_worker._LAST_WINDOWS = None
+    solve_worker._LAST_WINDOWS.clear()
     solve_worker._WINDOWS.clear()
     netlist_module._LAYOUTS = ()
     again = solve_sketch(s)
@@ -155,3 +155,13 @@ def test_loop_marks_after_a_value_edit_are_those_worked_out_afresh():
     s.replace_wire(1, Wire(0, 4, 12, 4))
     moved = solve_sketch(s)
     assert [c for c, *_ in moved.loops] != [c for c, *_ in kept.loops]
+    # moved back: the windows of the solve before last come back, as worked out afresh
+    s.update_part("R2", x=8)
+    s.replace_wire(0, Wire(0, 0, 8, 0))
+    s.replace_wire(1, Wire(0, 4, 8, 4))
+    back = solve_sketch(s)
+    solve_worker._LAST_WINDOWS.clear()
+    solve_worker._WINDOWS.clear()
+    netlist_module._LAYOUTS = ()
+    afresh = solve_sketch(s)
+    assert (back.loops, back.loop_outlines) == (afresh.loops, afresh.loop_outlines) == (kept.loops, kept.loop_outlines)

@@ -122,25 +122,29 @@ def _window(loop, ends: dict[str, tuple[str, str]], pos: dict[str, tuple[float, 
     return hit
 
 
-_LAST_WINDOWS: tuple[dict, list, list] | None = None   # (ends, loop parts, windows) of the last solve
+_LAST_WINDOWS: list[tuple[dict, list, list]] = []   # (ends, loop parts, windows) of the last solves, newest first
+_LAST_KEPT = 4
 
 
 def _windows(loops: list, circuit) -> list[tuple[tuple[float, float] | None, list[tuple[float, float]]]]:
     """:func:`_window` of each loop of a solution of ``circuit``.
 
     After a value edit the parts, their end points and the loops are those of the
-    last solve (the solver lists the loops of a kept shape with the same tuples):
-    then the last solve's windows are the answer, found without a look-up per loop.
+    last solve (the solver lists the loops of a kept shape with the same tuples), and
+    after a move taken back, or an undo, those of one before: then that solve's windows
+    are the answer, found without a look-up per loop. The last ``_LAST_KEPT`` are kept.
     """
-    global _LAST_WINDOWS
     ends = {p.name: (p.a, p.b) for p in circuit.parts}
     members = [loop.parts for loop in loops]
-    last = _LAST_WINDOWS
-    if last is not None and last[1] == members and last[0] == ends:
-        return last[2]
+    for k, (e, m, w) in enumerate(_LAST_WINDOWS):
+        if m == members and e == ends:
+            if k:
+                _LAST_WINDOWS.insert(0, _LAST_WINDOWS.pop(k))
+            return w
     pos = circuit.positions
     windows = [_window(loop, ends, pos) for loop in loops]
-    _LAST_WINDOWS = (ends, members, windows)
+    _LAST_WINDOWS.insert(0, (ends, members, windows))
+    del _LAST_WINDOWS[_LAST_KEPT:]
     return windows
 
 
