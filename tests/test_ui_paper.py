@@ -47,7 +47,7 @@ def _stale(win) -> int:
     shown = _pixels(win)
     for item in win.scene.items():
         if isinstance(item, OnPaper):
-            item._pictures.clear()
+            item._forget_pictures()
     win.view.resetCachedContent()
     win.view.viewport().repaint()
     return int((np.abs(shown - _pixels(win)).max(axis=2) > 24).sum())
@@ -110,6 +110,13 @@ def test_moves_rotations_and_a_fault_leave_no_stale_paper(qtbot, tmp_path):
         win.editor.rotate(["R2"])
         _solved(qtbot, win)
         assert _stale(win) == 0, step
+    # pictures dropped by Qt's pixmap cache (past its limit) are painted again when next needed
+    from PySide6.QtGui import QPixmapCache
+    QPixmapCache.clear()
+    win.scene.select(["R1"])
+    win.editor.nudge(0, -1)
+    _solved(qtbot, win)
+    assert _stale(win) == 0
     # a short across the cell: the parts the error names are flagged, with a dashed rim
     win.editor.add_wire((0, 0), (0, 4))
     _solved(qtbot, win)

@@ -10,7 +10,7 @@ from dataclasses import replace
 
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
 from PySide6.QtGui import (QBrush, QColor, QFontMetricsF, QPainter, QPainterPath,
-                           QPainterPathStroker, QPen, QPixmap, QPolygonF, QTransform)
+                           QPainterPathStroker, QPen, QPixmapCache, QPolygonF, QTransform)
 from PySide6.QtWidgets import QGraphicsItem, QGraphicsScene, QStyle, QStyleOptionGraphicsItem, QWidget
 
 from ..sketch.model import PlacedPart, Wire
@@ -79,7 +79,14 @@ class OnPaper(QGraphicsItem):
     def __init__(self) -> None:
         super().__init__()
         self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, True)
-        self._pictures: dict[tuple, tuple[QPixmap, int, int]] = {}
+        # the pictures live in QPixmapCache, which drops the longest unused past its limit:
+        # a few thousand parts seen at a high zoom stay within it
+        self._pictures: dict[tuple, tuple[QPixmapCache.Key, int, int]] = {}
+
+    def _forget_pictures(self) -> None:
+        for key, _, _ in self._pictures.values():
+            QPixmapCache.remove(key)
+        self._pictures.clear()
 
     def repaper(self, was: QRectF | None = None, moved_only: bool = False) -> None:
         """Paint the paper under the item again, and under scene box ``was`` (where it was);
@@ -89,8 +96,8 @@ class OnPaper(QGraphicsItem):
         box of all items up to date from the changed items alone, where a repaint asked for
         before would have it measure every item of the scene (hundreds of calls into Python).
         """
-        if not moved_only:
-            self._pictures.clear()
+        if not moved_only and self._pictures:
+            self._forget_pictures()
         scene = self.scene()
         if scene is not None:
             box = self.sceneBoundingRect()
@@ -111,13 +118,16 @@ class OnPaper(QGraphicsItem):
         ix, iy, fx, fy = anchor(t, dpr, x, y)
         key = (t.m11(), t.m22(), dpr, fx, fy, bool(option.state & QStyle.StateFlag.State_Selected))
         hit = self._pictures.get(key)
-        if hit is None:
+        pm = QPixmapCache.find(hit[0]) if hit is not None else None
+        if pm is None:
             if len(self._pictures) >= self.KEPT:
-                self._pictures.clear()
+                self._forget_pictures()
             p = Stamper.PHASES
-            hit = self._pictures[key] = picture(lambda q: self.paint(q, option, None), self.boundingRect(),
-                                                t.m11(), t.m22(), fx / p, fy / p, dpr)
-        pm, left, top = hit
+            pm, left, top = picture(lambda q: self.paint(q, option, None), self.boundingRect(),
+                                    t.m11(), t.m22(), fx / p, fy / p, dpr)
+            self._pictures[key] = (QPixmapCache.insert(pm), left, top)
+        else:
+            left, top = hit[1], hit[2]
         painter.save()
         painter.resetTransform()
         painter.drawPixmap(QPointF((ix + left) / dpr, (iy + top) / dpr), pm)

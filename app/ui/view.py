@@ -11,7 +11,7 @@ from __future__ import annotations
 import math
 
 from PySide6.QtCore import QPoint, QPointF, QRectF, Qt, Signal
-from PySide6.QtGui import QKeyEvent, QMouseEvent, QPainter, QPaintEvent, QPen, QPolygonF, QRegion, QWheelEvent
+from PySide6.QtGui import QKeyEvent, QMouseEvent, QPainter, QPaintEvent, QPen, QPixmapCache, QPolygonF, QRegion, QWheelEvent
 from PySide6.QtWidgets import QGraphicsView
 
 from ..sketch.kinds import kind_spec
@@ -27,6 +27,10 @@ __all__ = ["CanvasView", "SELECT", "WIRE"]
 SELECT = "select"
 WIRE = "wire"
 GridPoint = tuple[int, int]
+# Room for the pictures parts and wires keep of themselves (items.OnPaper, in QPixmapCache):
+# at Qt's default of 10 MB a few hundred parts on screen push each other out, and a repaint
+# of the paper under a move paints its neighbours afresh.
+PICTURES_KB = 64 * 1024
 
 
 class CanvasView(QGraphicsView):
@@ -47,6 +51,7 @@ class CanvasView(QGraphicsView):
         self.setRubberBandSelectionMode(Qt.ItemSelectionMode.IntersectsItemShape)
         self.setMouseTracking(True)
         self.setCacheMode(QGraphicsView.CacheModeFlag.CacheBackground)
+        QPixmapCache.setCacheLimit(max(QPixmapCache.cacheLimit(), PICTURES_KB))
         self.setFocusPolicy(Qt.FocusPolicy.StrongFocus)
         self.editor: Editor | None = None
         self.mode = SELECT
