@@ -676,11 +676,8 @@ class ReadingLayer(QGraphicsItem):
         # outlines and are filled with no pen (see ``_outlined``)
         looks = ((_pen(th.current, 1.4), th.current), (_pen(th.drop, 1.4), th.drop),
                  (_pen(th.potential, 0.9), th.tag), (_pen(th.loop, LoopMark.PEN), th.loop))
-        text, draw = painter.drawStaticText, self._stamper.draw
-        exact = getattr(self.scene(), "drawn_exactly", False)
-
-        def stamp(p: QPainter, stamps: list, colours: tuple) -> None:
-            draw(p, stamps, colours, exact)
+        text, stamp = painter.drawStaticText, self._stamper.draw
+        exact = getattr(self.scene(), "drawn_exactly", False)  # a picture file: shapes filled afresh
         for group, (pen, fill) in enumerate(looks):
             # the figures of the marks in sight; one loop per kind of stroke, with no call per
             # mark but the drawing itself (hundreds of marks are drawn on each repaint)
@@ -689,7 +686,7 @@ class ReadingLayer(QGraphicsItem):
             if not figs:
                 continue
             if group < 2:  # part marks: arrow heads, then texts and lines
-                stamp(painter, [f[3] for f in figs if f[3] is not None], (fill,))
+                stamp(painter, [f[3] for f in figs if f[3] is not None], (fill,), exact)
                 painter.setPen(pen)
                 lines: list[QLineF] = []
                 for at, st, mark_lines, _ in figs:
@@ -701,12 +698,12 @@ class ReadingLayer(QGraphicsItem):
             elif group == 2:  # potential tags: leader lines under the boxes, then box and text
                 painter.setPen(pen)
                 painter.drawLines([f[0] for f in figs])
-                stamp(painter, [f[1] for f in figs], (th.potential, fill))
+                stamp(painter, [f[1] for f in figs], (th.potential, fill), exact)
                 painter.setPen(pen)
                 for f in figs:
                     text(f[2], f[3])
             else:  # loop marks: arc and arrow head, then text
-                stamp(painter, [f[0] for f in figs], (fill,))
+                stamp(painter, [f[0] for f in figs], (fill,), exact)
                 painter.setPen(pen)
                 for _, at, st in figs:
                     text(at, st)
