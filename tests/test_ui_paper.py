@@ -191,7 +191,8 @@ def test_a_picture_file_draws_every_shape_afresh(qtbot, tmp_path, monkeypatch):
     demo = Path(__file__).resolve().parents[1] / "demo_circuits" / "market_stall_lamps.lwsk"
     render(demo, tmp_path / "shot.png")
     monkeypatch.setattr(items, "copies", lambda painter: False)  # no copying anywhere: all afresh
+    draw = an.Stamper.draw
     monkeypatch.setattr(an.Stamper, "draw", lambda self, p, stamps, colours, exact=False:
-                        self._fill(p, stamps, colours) if stamps else None)
+                        draw(self, p, stamps, colours, True))
     render(demo, tmp_path / "afresh.png")
     assert QImage(str(tmp_path / "shot.png")) == QImage(str(tmp_path / "afresh.png"))

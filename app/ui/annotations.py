@@ -10,16 +10,16 @@ from __future__ import annotations
 import math
 from collections.abc import Iterator
 from contextlib import contextmanager
+from functools import lru_cache
 
 import numpy as np
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
-from PySide6.QtGui import (QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF, QStaticText, QTextOption,
-                           QTransform)
+from PySide6.QtGui import QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF, QStaticText, QTextOption
 from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
 
 from ..units import format_value
 from .items import COVER_TEXT, Z_MARK, Box, box_of, Z_NOTE, PartItem, _paint_warning_sign, too_small
-from .stamps import Stamp, Stamper
+from .stamps import Stamp, Stamper, zooms_only
 from .theme import current_theme, small_font
 
 __all__ = ["CurrentMark", "DropMark", "ReadingLayer", "PotentialTag", "LoopMark", "FaultNote", "LAYERS"]
@@ -75,20 +75,17 @@ def _head_points(x: float, y: float, dx: float, dy: float, size: float) -> list[
     return [(x, y), (bx + nx, by + ny), (bx - nx, by - ny)]
 
 
-_HEADS: dict[tuple[float, float, float, float], tuple[tuple, tuple[QPolygonF]]] = {}
+@lru_cache(maxsize=256)
+def _head_shape(dx: float, dy: float, size: float, pen: float) -> tuple[tuple, tuple[QPolygonF]]:
+    """The stamp key and shape of an arrow head about its tip (see ``_head_stamp``)."""
+    return ("head", dx, dy, size, pen), (_outlined(_head_points(0.0, 0.0, dx, dy, size), pen),)
 
 
 def _head_stamp(x: float, y: float, dx: float, dy: float, size: float = 5.0, pen: float = 1.4) -> Stamp:
     """A filled arrow head with its tip at (x, y) pointing along the unit vector (dx, dy),
     taking in the outline of a ``pen`` wide pen (drawn with no pen: see ``_outlined``), as
     a stamp (see ``stamps``). One shape per direction is worked out, and put in place."""
-    key = (dx, dy, size, pen)
-    hit = _HEADS.get(key)
-    if hit is None:
-        if len(_HEADS) > 256:
-            _HEADS.clear()
-        hit = _HEADS[key] = (("head", *key), (_outlined(_head_points(0.0, 0.0, dx, dy, size), pen),))
-    return hit[0], hit[1], x, y
+    return (*_head_shape(dx, dy, size, pen), x, y)
 
 
 def _arrow_head(x: float, y: float, dx: float, dy: float, size: float = 5.0, pen: float = 1.4) -> QPolygonF:
@@ -511,9 +508,6 @@ class DropMark(_PartMark):
         return at, lines, None
 
 
-_SCALED = QTransform.TransformationType.TxScale.value  # a view's transform that only zooms and scrolls
-
-
 class ReadingLayer(QGraphicsItem):
     """Paints every mark of the solution in one pass: part currents and drops, node
     potential tags and loop currents.
@@ -657,7 +651,7 @@ class ReadingLayer(QGraphicsItem):
         view = widget.parentWidget() if widget is not None else None
         region = getattr(view, "exposed_region", None)
         t = painter.worldTransform()
-        if region is None or not 1 < region.rectCount() <= cls.MOST_AREAS or t.type().value > _SCALED:
+        if region is None or not 1 < region.rectCount() <= cls.MOST_AREAS or not zooms_only(t):
             return np.array([[ex.left(), ex.top(), ex.right(), ex.bottom()]])
         # pixel (x1, y1)..(x2, y2) covers x1 to x2 + 1: back to the scene through scale and shift
         d = np.array([r.getCoords() for r in region], dtype=float) + (0.0, 0.0, 1.0, 1.0)
@@ -819,22 +813,18 @@ class PotentialTag(_HungMark):
         return (QLineF(pos, corner), (*_tag_box(self._rect), pos.x(), pos.y()), *_centred(r, self.text))
 
 
-_BOXES: dict[tuple[float, float, float, float], tuple[tuple, tuple[QPolygonF, QPolygonF]]] = {}
-
-
 def _tag_box(rect: QRectF) -> tuple[tuple, tuple[QPolygonF, QPolygonF]]:
     """A tag's box (3 px corners, a rim of ``PotentialTag.BORDER``) about its point: a stamp's
     key and shapes (see ``stamps``), the rim's outer shape and the inside. Worked out once
     per box (tags of like values share one)."""
-    key = (rect.x(), rect.y(), rect.width(), rect.height())
-    hit = _BOXES.get(key)
-    if hit is None:
-        if len(_BOXES) > 1024:
-            _BOXES.clear()
-        h = PotentialTag.BORDER / 2
-        hit = _BOXES[key] = (("tag", *key), (_rounded_box(rect.adjusted(-h, -h, h, h), 3 + h),
-                                             _rounded_box(rect.adjusted(h, h, -h, -h), 3 - h)))
-    return hit
+    return _tag_box_at(rect.x(), rect.y(), rect.width(), rect.height())
+
+
+@lru_cache(maxsize=1024)
+def _tag_box_at(x: float, y: float, w: float, h: float) -> tuple[tuple, tuple[QPolygonF, QPolygonF]]:
+    rect, b = QRectF(x, y, w, h), PotentialTag.BORDER / 2
+    return ("tag", x, y, w, h), (_rounded_box(rect.adjusted(-b, -b, b, b), 3 + b),
+                                 _rounded_box(rect.adjusted(b, b, -b, -b), 3 - b))
 
 
 class LoopMark(_HungMark):
@@ -936,25 +926,19 @@ class LoopMark(_HungMark):
         return (arrow, *_centred(self._text_rect.translated(x, y), self.text))
 
 
-_CIRCLING: dict[tuple[float, bool], tuple[QPolygonF, QPolygonF, QPolygonF]] = {}
-
-
+@lru_cache(maxsize=64)
 def _circling(r: float, clockwise: bool) -> tuple[QPolygonF, QPolygonF, QPolygonF]:
     """A loop mark's arrow about the origin: the arc (its gap at the top, drawn by a
     ``LoopMark.PEN`` wide pen with round caps), the head at its end, and both as one
     shape (one fill per mark), as shapes to fill."""
-    key = (r, clockwise)
-    hit = _CIRCLING.get(key)
-    if hit is None:
-        # Qt angles: counter-clockwise positive (y up); the gap sits at the top
-        start, span = (60.0, 300.0) if not clockwise else (120.0, -300.0)
-        end = math.radians(start + span)
-        sgn = 1 if span > 0 else -1  # the tangent along the direction of travel
-        tx, ty = -math.sin(end) * sgn, -math.cos(end) * sgn
-        head = _arrow_head(r * math.cos(end) + tx * 2, -r * math.sin(end) + ty * 2, tx, ty, 6, LoopMark.PEN)
-        band = _arc_band(r, start, span, LoopMark.PEN)
-        hit = _CIRCLING[key] = (band, head, band.united(head))
-    return hit
+    # Qt angles: counter-clockwise positive (y up); the gap sits at the top
+    start, span = (60.0, 300.0) if not clockwise else (120.0, -300.0)
+    end = math.radians(start + span)
+    sgn = 1 if span > 0 else -1  # the tangent along the direction of travel
+    tx, ty = -math.sin(end) * sgn, -math.cos(end) * sgn
+    head = _arrow_head(r * math.cos(end) + tx * 2, -r * math.sin(end) + ty * 2, tx, ty, 6, LoopMark.PEN)
+    band = _arc_band(r, start, span, LoopMark.PEN)
+    return band, head, band.united(head)
 
 
 class FaultNote(QGraphicsItem):

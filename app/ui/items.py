@@ -8,19 +8,21 @@ from __future__ import annotations
 
 from dataclasses import replace
 
+import numpy as np
+
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
 from PySide6.QtGui import (QBrush, QColor, QFontMetricsF, QPainter, QPainterPath,
                            QPainterPathStroker, QPen, QPixmapCache, QPolygonF, QTransform)
 from PySide6.QtWidgets import QGraphicsItem, QGraphicsScene, QStyle, QStyleOptionGraphicsItem, QWidget
 
 from ..sketch.model import PlacedPart, Wire
-from .stamps import Stamper, anchor, copies, picture
+from .stamps import PHASES, anchors, copies, picture
 from .symbols import IEC, body_centre, paint_part, symbol_outline
 from .theme import GRID, current_theme, label_font
 from .valuetext import value_line
 
-__all__ = ["too_small", "OnPaper", "paint_on_paper", "PartItem", "WireItem", "JunctionLayer", "LooseEnd", "RubberWire", "GridCursor",
-           "value_text", "to_scene", "box_of", "COVER_TEXT", "COVER_BODY", "CACHE", "Z_WIRE", "Z_PART", "Z_MARK", "Z_NOTE"]
+__all__ = ["too_small", "OnPaper", "paint_on_paper", "PartItem", "WireItem", "JunctionLayer", "LooseEnd",
+           "RubberWire", "GridCursor", "value_text", "to_scene", "box_of", "COVER_TEXT", "COVER_BODY", "CACHE", "Z_WIRE", "Z_PART", "Z_MARK", "Z_NOTE"]
 
 Z_WIRE, Z_PART, Z_DOT, Z_MARK, Z_NOTE, Z_TOOL = 1.0, 2.0, 3.0, 4.0, 6.0, 8.0
 INK_WIDTH = 1.7
@@ -71,14 +73,16 @@ class OnPaper(QGraphicsItem):
     repaint that only new readings asked for. The item has no contents of its own (it is
     still there for hit tests and selection); whatever changes its look calls ``repaper``,
     and so do its coming, going, selection and visibility. Draw it in ``paint`` as usual.
+    ``on_paper`` False makes an item of the kind that paints itself, as any item does
+    (``repaper`` then repaints it).
     """
 
-    on_paper = True
     KEPT = 4  # pictures kept of the item (zooms, pixel offsets, selected or not)
 
-    def __init__(self) -> None:
+    def __init__(self, on_paper: bool = True) -> None:
         super().__init__()
-        self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, True)
+        self.on_paper = on_paper
+        self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, on_paper)
         # the pictures live in QPixmapCache, which drops the longest unused past its limit:
         # a few thousand parts seen at a high zoom stay within it
         self._pictures: dict[tuple, tuple[QPixmapCache.Key, int, int]] = {}
@@ -96,6 +100,9 @@ class OnPaper(QGraphicsItem):
         box of all items up to date from the changed items alone, where a repaint asked for
         before would have it measure every item of the scene (hundreds of calls into Python).
         """
+        if not self.on_paper:
+            self.update()
+            return
         if not moved_only and self._pictures:
             self._forget_pictures()
         scene = self.scene()
@@ -115,16 +122,16 @@ class OnPaper(QGraphicsItem):
             painter.restore()
             return
         t, dpr = painter.worldTransform(), painter.device().devicePixelRatioF()
-        ix, iy, fx, fy = anchor(t, dpr, x, y)
+        whole, phase = anchors(t, dpr, np.array([(x, y)]))
+        (ix, iy), (fx, fy) = whole[0].tolist(), phase[0].tolist()
         key = (t.m11(), t.m22(), dpr, fx, fy, bool(option.state & QStyle.StateFlag.State_Selected))
         hit = self._pictures.get(key)
         pm = QPixmapCache.find(hit[0]) if hit is not None else None
         if pm is None:
             if len(self._pictures) >= self.KEPT:
                 self._forget_pictures()
-            p = Stamper.PHASES
             pm, left, top = picture(lambda q: self.paint(q, option, None), self.boundingRect(),
-                                    t.m11(), t.m22(), fx / p, fy / p, dpr)
+                                    t.m11(), t.m22(), fx / PHASES, fy / PHASES, dpr)
             self._pictures[key] = (QPixmapCache.insert(pm), left, top)
         else:
             left, top = hit[1], hit[2]
@@ -170,30 +177,21 @@ class PartItem(OnPaper):
     """
 
     def __init__(self, part: PlacedPart, style: str = IEC, ghost: bool = False) -> None:
-        super().__init__()
+        super().__init__(on_paper=not ghost)
         self.style = style
         self.ghost = ghost
-        self.on_paper = not ghost
         self.flagged = False
         self.side = -1
         self.part = part
         self._fm = QFontMetricsF(label_font())
         if not ghost:
             self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemIsSelectable, True)
-        else:
-            self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemHasNoContents, False)
         self.setZValue(Z_TOOL if ghost else Z_PART)
         self.setAcceptHoverEvents(False)
 
         self._layout()
 
     # -- geometry ---------------------------------------------------------------
-    def repaper(self, was: QRectF | None = None, moved_only: bool = False) -> None:
-        if self.ghost:
-            self.update()
-        else:
-            super().repaper(was, moved_only)
-
     def set_part(self, part: PlacedPart) -> None:
         """Show ``part`` (a moved, turned or re-valued version)."""
         was, old = self.sceneBoundingRect(), self.part

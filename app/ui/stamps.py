@@ -22,16 +22,16 @@ import numpy as np
 from PySide6.QtCore import QPointF, QRectF, Qt
 from PySide6.QtGui import QColor, QImage, QPaintEngine, QPainter, QPixmap, QPolygonF, QTransform
 
-__all__ = ["Stamp", "Stamper", "picture", "anchor", "copies"]
+__all__ = ["Stamp", "Stamper", "PHASES", "picture", "anchors", "copies", "zooms_only"]
 
 Stamp = tuple[Hashable, Sequence[QPolygonF], float, float]
-_SCALED = QTransform.TransformationType.TxScale.value  # zoom and scroll only
+PHASES = 4  # offsets kept per device pixel, along each axis
+_SCALED = QTransform.TransformationType.TxScale.value
 
 
 class Stamper:
     """Draws stamps by copying pictures kept per scale, colours, shape and offset."""
 
-    PHASES = 4   # offsets kept per device pixel, along each axis
     KEPT = 4096  # pictures kept per colour set before starting afresh
 
     def __init__(self) -> None:
@@ -44,7 +44,8 @@ class Stamper:
         if not stamps:
             return
         if exact or not copies(painter):
-            self._fill(painter, stamps, colours)
+            for _, shapes, x, y in stamps:
+                _fill(painter, shapes, colours, x, y)
             return
         t = painter.worldTransform()
         sx, sy, dpr = t.m11(), t.m22(), painter.device().devicePixelRatioF()
@@ -55,48 +56,38 @@ class Stamper:
         kept = self._kept.get(look)
         if kept is None or len(kept) > self.KEPT:
             kept = self._kept[look] = {}
-        p = self.PHASES
-        # each anchor in device pixels, in quarter pixels: its whole pixel and its offset in it
-        xy = np.array([(s[2], s[3]) for s in stamps], dtype=float)
-        q = np.floor((xy * (sx, sy) + (t.dx(), t.dy())) * (dpr * p) + 0.5).astype(np.int64)
-        whole, phase = (q // p).tolist(), (q % p).tolist()
+        whole, phase = anchors(t, dpr, np.array([(s[2], s[3]) for s in stamps], dtype=float))
         painter.save()
         painter.resetTransform()
         copy = painter.drawPixmap
-        for (key, shapes, _, _), (ix, iy), (fx, fy) in zip(stamps, whole, phase):
-            picture = kept.get((key, fx, fy))
-            if picture is None:
-                picture = kept[(key, fx, fy)] = _picture(shapes, colours, sx * dpr, sy * dpr, fx / p, fy / p, dpr)
-            pm, left, top = picture
+        for (key, shapes, _, _), (ix, iy), (fx, fy) in zip(stamps, whole.tolist(), phase.tolist()):
+            hit = kept.get((key, fx, fy))
+            if hit is None:
+                hit = kept[(key, fx, fy)] = picture(lambda q: _fill(q, shapes, colours), _box(shapes),
+                                                    sx, sy, fx / PHASES, fy / PHASES, dpr)
+            pm, left, top = hit
             if dpr == 1.0:
                 copy(ix + left, iy + top, pm)
             else:
                 copy(QPointF((ix + left) / dpr, (iy + top) / dpr), pm)
         painter.restore()
 
-    @staticmethod
-    def _fill(painter: QPainter, stamps: Sequence[Stamp], colours: Sequence[QColor]) -> None:
-        painter.setPen(Qt.PenStyle.NoPen)
-        for _, shapes, x, y in stamps:
-            for shape, colour in zip(shapes, colours):
-                painter.setBrush(colour)
-                painter.drawPolygon(shape.translated(x, y))
 
 
-def _picture(shapes: Sequence[QPolygonF], colours: Sequence[QColor], kx: float, ky: float,
-             fx: float, fy: float, dpr: float) -> tuple[QPixmap, int, int]:
-    """The shapes filled at ``kx``, ``ky`` device pixels per scene unit with their origin at
-    (fx, fy) in a device pixel; and where the picture's corner lies from that pixel."""
+def _fill(painter: QPainter, shapes: Sequence[QPolygonF], colours: Sequence[QColor],
+          x: float = 0.0, y: float = 0.0) -> None:
+    """Fill ``shapes`` in turn, the k-th in ``colours[k]``, moved by (x, y), with no pen."""
+    painter.setPen(Qt.PenStyle.NoPen)
+    for shape, colour in zip(shapes, colours):
+        painter.setBrush(colour)
+        painter.drawPolygon(shape.translated(x, y) if x or y else shape)
+
+
+def _box(shapes: Sequence[QPolygonF]) -> QRectF:
     box = shapes[0].boundingRect()
     for shape in shapes[1:]:
         box = box.united(shape.boundingRect())
-
-    def fill(painter: QPainter) -> None:
-        painter.setPen(Qt.PenStyle.NoPen)
-        for shape, colour in zip(shapes, colours):
-            painter.setBrush(colour)
-            painter.drawPolygon(shape)
-    return picture(fill, box, kx / dpr, ky / dpr, fx, fy, dpr)
+    return box
 
 
 def picture(draw: Callable[[QPainter], None], box: QRectF, sx: float, sy: float,
@@ -122,19 +113,20 @@ def picture(draw: Callable[[QPainter], None], box: QRectF, sx: float, sy: float,
     return QPixmap.fromImage(image), left, top
 
 
-def anchor(t: QTransform, dpr: float, x: float, y: float) -> tuple[int, int, int, int]:
-    """The device pixel (ix, iy) that scene point (x, y) falls in under ``t`` on a screen of
-    pixel ratio ``dpr``, and its offset in that pixel in ``Stamper.PHASES`` steps (fx, fy)."""
-    p = Stamper.PHASES
-    qx = math.floor((x * t.m11() + t.dx()) * dpr * p + 0.5)
-    qy = math.floor((y * t.m22() + t.dy()) * dpr * p + 0.5)
-    return qx // p, qy // p, qx % p, qy % p
+def anchors(t: QTransform, dpr: float, xy: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """For each scene point (rows of x, y) under ``t`` on a screen of pixel ratio ``dpr``: the
+    device pixel it falls in, and its offset in that pixel in ``PHASES`` steps (rounded)."""
+    q = np.floor((xy * (t.m11(), t.m22()) + (t.dx(), t.dy())) * (dpr * PHASES) + 0.5).astype(np.int64)
+    return q // PHASES, q % PHASES
+
+
+def zooms_only(t: QTransform) -> bool:
+    """True when ``t`` only zooms (by positive factors) and scrolls."""
+    return t.type().value <= _SCALED and t.m11() > 0 and t.m22() > 0
 
 
 def copies(painter: QPainter) -> bool:
     """True when ``painter`` paints pixels under a zoom-and-scroll transform: pictures can be
     copied in (not for a vector file or a turned painter)."""
-    t = painter.worldTransform()
     engine = painter.paintEngine()
-    return engine is not None and engine.type() == QPaintEngine.Type.Raster and t.type().value <= _SCALED \
-        and t.m11() > 0 and t.m22() > 0
+    return engine is not None and engine.type() == QPaintEngine.Type.Raster and zooms_only(painter.worldTransform())
