@@ -81,8 +81,7 @@ def _check_name(part: PlacedPart) -> None:
 
 def _check_names(parts: list[PlacedPart]) -> None:
     for part in parts:
-        if part.name.startswith("~"):
-            _check_name(part)
+        _check_name(part)
 
 
 def _runs(wires: list[Wire]):
