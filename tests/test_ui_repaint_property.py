@@ -71,3 +71,30 @@ def test_random_edits_on_a_small_sketch_leave_the_canvas_as_a_full_repaint_draws
 @pytest.mark.parametrize("whole", [False, True])
 def test_random_edits_on_a_large_sketch_leave_the_canvas_as_a_full_repaint_draws_it(qtbot, tmp_path, whole):
     assert _wrong_after_random_edits(qtbot, tmp_path, 200, whole=whole, edits=150) == []
+
+
+def test_an_edit_that_changes_most_values_repaints_every_view_that_shows_them(qtbot, tmp_path, monkeypatch):
+    """A move that changes more marks than ``ReadingLayer.FEW`` has each view repaint all it shows
+    (not a region of that many boxes): the canvas must then match a full repaint, at 100 % and seen whole."""
+    from app.ui.annotations import ReadingLayer
+
+    sizes = []
+    inner = ReadingLayer._repaint
+    monkeypatch.setattr(ReadingLayer, "_repaint", lambda self, boxes: (sizes.append(len(boxes)), inner(self, boxes)))
+    win = open_window(qtbot, tmp_path, grid_sketch(200), size=(1100, 700), centre=(80, 60))
+    names = [p.name for p in win.editor.sketch.parts if p.kind == "resistor"]
+    victim = names[len(names) // 2]  # as bench_live moves it: the loops and most values change
+    for whole in (False, True):
+        if whole:
+            win.view.zoom_fit()
+        for k in range(4):
+            sizes.clear()
+            win.scene.select([victim])
+            win.editor.nudge(0, 1 if k % 2 == 0 else -1)
+            qtbot.waitUntil(lambda: not win.solver.busy)
+            win.scene.settle_marks()
+            assert max(sizes) > ReadingLayer.FEW  # the path under test
+            shown = _canvas(win)
+            win.view.resetCachedContent()
+            win.view.viewport().repaint()
+            assert int((np.abs(shown - _canvas(win)).max(axis=2) > 24).sum()) == 0, (whole, k)

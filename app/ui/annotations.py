@@ -566,14 +566,24 @@ class ReadingLayer(QGraphicsItem):
         region and ``paint`` draws only the marks meeting it: a new value that changes a
         few texts spread over the drawing then redraws those, not all in the box around
         them (an item's own repaint requests are united into one box). Past ``FEW``,
-        clipping every item to that many rectangles costs more than it saves: one box.
+        clipping every item to that many rectangles costs more than it saves: a view that
+        shows any of them repaints all it shows. Not the box around them: with another
+        item's repaint beside it (a ring at an open end, say) the view's region would be
+        two rectangles, and Qt's raster engine draws every line, text and picture through
+        a clip of more than one rectangle at several times the cost (a 200-part move
+        seen whole: 0.4-2 ms less per edit, in same-process A/B runs).
         """
         scene = self.scene()
         if not boxes or scene is None:
             return
         if len(boxes) > self.FEW:
             lefts, tops, rights, bottoms = zip(*boxes)
-            boxes = [(min(lefts), min(tops), max(rights), max(bottoms))]
+            box = QRectF(min(lefts), min(tops), max(rights) - min(lefts), max(bottoms) - min(tops))
+            for view in scene.views():
+                viewport = view.viewport()
+                if view.mapFromScene(box).boundingRect().intersects(viewport.rect()):
+                    viewport.update()
+            return
         for left, top, right, bottom in dict.fromkeys(boxes):
             scene.update(QRectF(left, top, right - left, bottom - top))
 
