@@ -80,7 +80,8 @@ def test_an_edit_that_changes_most_values_repaints_every_view_that_shows_them(qt
 
     sizes = []
     inner = ReadingLayer._repaint
-    monkeypatch.setattr(ReadingLayer, "_repaint", lambda self, boxes: (sizes.append(len(boxes)), inner(self, boxes)))
+    monkeypatch.setattr(ReadingLayer, "_repaint",
+                        lambda self, boxes, marks=None: (sizes.append(len(boxes)), inner(self, boxes, marks)))
     win = open_window(qtbot, tmp_path, grid_sketch(200), size=(1100, 700), centre=(80, 60))
     names = [p.name for p in win.editor.sketch.parts if p.kind == "resistor"]
     victim = names[len(names) // 2]  # as bench_live moves it: the loops and most values change

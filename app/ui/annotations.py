@@ -14,13 +14,13 @@ from functools import lru_cache
 
 import numpy as np
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
-from PySide6.QtGui import QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF, QStaticText, QTextOption
+from PySide6.QtGui import QFontMetricsF, QImage, QPainter, QPainterPath, QPen, QPolygonF, QStaticText, QTextOption
 from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
 
 from ..units import format_value
 from .items import COVER_TEXT, Z_MARK, Box, box_of, Z_NOTE, PartItem, _paint_warning_sign, too_small
 from .stamps import Stamp, Stamper, zooms_only
-from .theme import current_theme, small_font
+from .theme import Theme, current_theme, small_font
 
 __all__ = ["CurrentMark", "DropMark", "ReadingLayer", "PotentialTag", "LoopMark", "FaultNote", "LAYERS"]
 
@@ -252,7 +252,7 @@ class _LayerPainted(QGraphicsItem):
 
     def repaint(self) -> None:
         """Ask the layer to paint the mark's box again."""
-        self.layer.repaint_box(self._scene_box)
+        self.layer.repaint_mark(self, self._scene_box)
 
 
 class _PartMark(_LayerPainted):
@@ -342,11 +342,12 @@ class _PartMark(_LayerPainted):
             elif was_shown and _fits_slot(value):
                 self._text_rect = None
                 self._fig = None
-                if readable:
-                    if old * value > 0:  # the same direction: only the text line (and its arrow) change
-                        self.layer.repaint_box(self._text_box)
-                    else:
-                        self.repaint()
+                if not readable:
+                    self.layer.touch(self)
+                elif old * value > 0:  # the same direction: only the text line (and its arrow) change
+                    self.layer.repaint_mark(self, self._text_box)
+                else:
+                    self.repaint()
             else:
                 self.relayout()
         self._show(self._layer_on)
@@ -515,12 +516,17 @@ class ReadingLayer(QGraphicsItem):
     Each mark stays an item of its own (hit tests, layout, visibility) with no contents:
     hundreds of tiny items each cost a call into Python, a cached picture and a painter of
     their own on every change, where one item drawing them all costs little more than the
-    texts and lines themselves. Marks ask for their box to be repainted (``repaint_box``);
+    texts and lines themselves. Marks ask for their box to be repainted (``repaint_mark``);
     the layer files them by place (``CELL``) and draws those meeting the rectangles being
     repainted (``_areas``), group by group (``GROUPS``), each group with one pen and brush.
+
+    Marks that change together are drawn over the rest (see ``_split``): while a part is
+    dragged or a value tried, the same marks change on every edit, and the others come
+    from pictures each view keeps, one per group (``_kept_pictures``).
     """
 
     GROUPS = ("currents", "drops", "potentials", "loops")
+    KEEP = True  # keep pictures of the marks not changing, per view (False: draw all each time)
 
     def __init__(self) -> None:
         super().__init__()
@@ -533,12 +539,31 @@ class ReadingLayer(QGraphicsItem):
         self._reach = (0.0, 0.0)  # the widest and the tallest box: how far back from an area to look
         self._bounds = QRectF()
         self._held: list[tuple[float, float, float, float]] | None = None
+        self._held_marks: dict[int, QGraphicsItem] | None = None
         self._stamper = Stamper()  # heads, tag boxes and loop arrows: copied, not filled afresh
+        self._hot: dict[int, QGraphicsItem] = {}  # the marks drawn over the rest: those changing of late
+        self._hot_in: tuple[dict[int, QGraphicsItem], ...] = tuple({} for _ in self.GROUPS)  # per group
+        self._split_count = 0  # how often the marks were split into kept and changing ones
+        self._changes = 0  # how often a kept mark changed: a picture of them made before is stale
+        self._kept: dict[int, tuple[tuple, list[QImage | None]]] = {}  # per view: (made for, a picture per group)
 
     FEW = 150  # up to this many boxes in one hold are repainted each on its own, more as one box
 
+    def touch(self, mark: QGraphicsItem) -> None:
+        """Take note that ``mark`` now draws differently (its repaint is asked for apart)."""
+        key = id(mark)
+        if self._held_marks is not None:
+            self._held_marks[key] = mark
+        if key not in self._hot:
+            self._changes += 1
+
+    def repaint_mark(self, mark: QGraphicsItem, box: tuple[float, float, float, float]) -> None:
+        """``mark`` changed: paint its scene box (left, top, right, bottom) again."""
+        self.touch(mark)
+        self.repaint_box(box)
+
     def repaint_box(self, box: tuple[float, float, float, float]) -> None:
-        """Paint a mark's scene box (left, top, right, bottom) again (at the end of a ``hold``)."""
+        """Paint a scene box (left, top, right, bottom) again (at the end of a ``hold``)."""
         if box[2] <= box[0]:
             return
         if self._held is not None:
@@ -552,15 +577,40 @@ class ReadingLayer(QGraphicsItem):
         if self._held is not None:
             yield
             return
-        self._held = []
+        self._held, self._held_marks = [], {}
         try:
             yield
         finally:
-            boxes, self._held = self._held, None
-            self._repaint(boxes)
+            boxes, marks = self._held, self._held_marks
+            self._held = self._held_marks = None
+            self._repaint(boxes, marks)
 
-    def _repaint(self, boxes: list[tuple[float, float, float, float]]) -> None:
-        """Have the views repaint ``boxes``.
+    def _split(self, changing: dict[int, QGraphicsItem]) -> None:
+        """From now on draw ``changing`` over the other marks, and every view again.
+
+        The marks that changed with the last few edits are likely to change with the next
+        too (a part dragged on, a value tried again): they alone are then drawn, and the
+        rest come from the pictures each view keeps of them. A mark drawn over the others
+        of its group stays so until the next split, in every view and every repaint, so the
+        drawing never depends on which part of it was repainted last. When most marks
+        change each time, all are drawn and the pictures hold none.
+        """
+        self._hot = changing
+        self._hot_in = tuple({} for _ in self.GROUPS)
+        for key, mark in changing.items():
+            self._hot_in[mark.GROUP][key] = mark
+        self._split_count += 1
+        scene = self.scene()
+        for view in scene.views() if scene is not None else ():
+            view.viewport().update()
+
+    def drop_pictures(self) -> None:
+        """Forget the views' kept pictures (the next repaint draws every mark afresh)."""
+        self._kept.clear()
+
+    def _repaint(self, boxes: list[tuple[float, float, float, float]],
+                 marks: dict[int, QGraphicsItem] | None = None) -> None:
+        """Have the views repaint ``boxes`` (those of ``marks``, when known).
 
         Up to ``FEW`` boxes go to the scene one by one, so a view repaints just their
         region and ``paint`` draws only the marks meeting it: a new value that changes a
@@ -572,20 +622,33 @@ class ReadingLayer(QGraphicsItem):
         two rectangles, and Qt's raster engine draws every line, text and picture through
         a clip of more than one rectangle at several times the cost (a 200-part move
         seen whole: 0.4-2 ms less per edit, in same-process A/B runs).
+
+        With kept pictures (``KEEP``) a view repainted whole copies them and draws the
+        changing marks alone; marks among those past ``FEW`` not yet drawn over the rest
+        are split off first (``_split``).
         """
         scene = self.scene()
         if not boxes or scene is None:
             return
-        if len(boxes) > self.FEW:
-            lefts, tops, rights, bottoms = zip(*boxes)
-            box = QRectF(min(lefts), min(tops), max(rights) - min(lefts), max(bottoms) - min(tops))
-            for view in scene.views():
-                viewport = view.viewport()
-                if view.mapFromScene(box).boundingRect().intersects(viewport.rect()):
-                    viewport.update()
+        if len(boxes) <= self.FEW:
+            for left, top, right, bottom in dict.fromkeys(boxes):
+                scene.update(QRectF(left, top, right - left, bottom - top))
             return
-        for left, top, right, bottom in dict.fromkeys(boxes):
-            scene.update(QRectF(left, top, right - left, bottom - top))
+        if self.KEEP and marks is not None:
+            hot = self._hot
+            if not marks.keys() <= hot.keys():
+                hot = {**hot, **marks}
+            if len(hot) > 2 * len(marks) + self.FEW:  # most of those drawn over the rest no longer change
+                hot = marks
+            if hot is not self._hot:
+                self._split(hot)
+                return
+        lefts, tops, rights, bottoms = zip(*boxes)
+        box = QRectF(min(lefts), min(tops), max(rights) - min(lefts), max(bottoms) - min(tops))
+        for view in scene.views():
+            viewport = view.viewport()
+            if view.mapFromScene(box).boundingRect().intersects(viewport.rect()):
+                viewport.update()
 
     CELL = 256.0  # marks are filed by the cell of their box's top left corner, this size
 
@@ -613,6 +676,8 @@ class ReadingLayer(QGraphicsItem):
         for mark in (owner.current_mark, owner.drop_mark):
             if mark is not None:
                 mark.repaint()
+                self._hot.pop(id(mark), None)
+                self._hot_in[mark.GROUP].pop(id(mark), None)
                 cell = self._cell_of.pop(id(mark), None)
                 if cell is not None:
                     self._cells[mark.GROUP][cell].pop(id(mark), None)
@@ -634,9 +699,17 @@ class ReadingLayer(QGraphicsItem):
         bottom): those in sight of the box around them, tested against every area at once
         (a move repaints hundreds)."""
         (left, top, _, _), (_, _, right, bottom) = areas.min(axis=0).tolist(), areas.max(axis=0).tolist()
-        marks = self._in_sight(group, left, top, right, bottom)
+        return self._within(self._in_sight(group, left, top, right, bottom), areas)
+
+    @staticmethod
+    def _within(marks: list, areas: np.ndarray) -> list:
+        """Those of ``marks`` whose boxes meet any of ``areas`` (rows of left, top, right, bottom)."""
         if not marks:
             return marks
+        if len(areas) == 1:
+            left, top, right, bottom = areas[0].tolist()
+            return [m for m in marks if (b := m._scene_box)[2] >= left and b[0] <= right
+                    and b[3] >= top and b[1] <= bottom]
         b = np.array([m._scene_box for m in marks])[:, :, None]
         a = areas.T[None]
         hit = ((b[:, 2] >= a[:, 0]) & (b[:, 0] <= a[:, 2]) & (b[:, 3] >= a[:, 1]) & (b[:, 1] <= a[:, 3])).any(axis=1)
@@ -680,37 +753,117 @@ class ReadingLayer(QGraphicsItem):
         # outlines and are filled with no pen (see ``_outlined``)
         looks = ((_pen(th.current, 1.4), th.current), (_pen(th.drop, 1.4), th.drop),
                  (_pen(th.potential, 0.9), th.tag), (_pen(th.loop, LoopMark.PEN), th.loop))
-        text, stamp = painter.drawStaticText, self._stamper.draw
-        exact = getattr(self.scene(), "drawn_exactly", False)  # a picture file: shapes filled afresh
-        for group, (pen, fill) in enumerate(looks):
-            # the figures of the marks in sight; one loop per kind of stroke, with no call per
-            # mark but the drawing itself (hundreds of marks are drawn on each repaint)
-            marks = self._in_sight(group, *areas[0].tolist()) if len(areas) == 1 else self._meeting(group, areas)
-            figs = [m._fig or m.figure() for m in marks]
+        if getattr(self.scene(), "drawn_exactly", False):  # a picture file: every mark, shapes filled afresh
+            for group in range(len(self.GROUPS)):
+                self._draw(painter, areas, looks, group, True, self._ALL)
+            return
+        kept = self._kept_pictures(painter, widget, th, looks)
+        for group in range(len(self.GROUPS)):
+            if kept is None:
+                self._draw(painter, areas, looks, group, False, self._KEPT)
+            elif kept[group] is not None:
+                painter.save()
+                painter.resetTransform()
+                painter.drawImage(0, 0, kept[group])
+                painter.restore()
+            self._draw(painter, areas, looks, group, False, self._HOT)
+
+    _ALL, _KEPT, _HOT = range(3)  # which marks of a group ``_draw`` draws
+
+    def _kept_pictures(self, painter: QPainter, widget: QWidget | None, th: Theme,
+                       looks: tuple) -> list[QImage | None] | None:
+        """Per group, the picture of its kept marks (those not drawn over the rest, see
+        ``_split``) that the view being painted keeps (None: no kept mark of the group in
+        sight), made anew when the whole view is repainted and the pictures are stale: kept
+        marks changed, or the view zoomed, scrolled or was resized. None when there are none
+        to use (the marks are then drawn).
+
+        One picture per group, not one for all, keeps the groups' order: a tag drawn over
+        the part marks it hangs among stays over them whether they change or not.
+        """
+        view = widget.parentWidget() if widget is not None else None
+        region = getattr(view, "exposed_region", None)
+        t = painter.worldTransform()
+        if region is None or not self.KEEP or not self._hot or not zooms_only(t):
+            return None  # no marks drawn over the rest: none split off, a picture would save little
+        w, h, dpr = widget.width(), widget.height(), widget.devicePixelRatioF()
+        made_for = (t.m11(), t.m22(), t.dx(), t.dy(), w, h, dpr, th, self._split_count, self._changes)
+        kept = self._kept.get(id(view))
+        if kept is not None and kept[0] == made_for:
+            return kept[1]
+        if region.rectCount() != 1 or not region.boundingRect().contains(widget.rect()):
+            return None  # a part of the view: drawing the marks in it costs less than new pictures
+        r = t.inverted()[0].mapRect(QRectF(0, 0, w, h))
+        areas = np.array([[r.left(), r.top(), r.right(), r.bottom()]])
+        pictures: list[QImage | None] = []
+        for group in range(len(self.GROUPS)):
+            figs = self._figures(group, areas, self._KEPT)
             if not figs:
+                pictures.append(None)
                 continue
-            if group < 2:  # part marks: arrow heads, then texts and lines
-                stamp(painter, [f[3] for f in figs if f[3] is not None], (fill,), exact)
-                painter.setPen(pen)
-                lines: list[QLineF] = []
-                for at, st, mark_lines, _ in figs:
-                    text(at, st)
-                    if mark_lines:
-                        lines += mark_lines
-                if lines:
-                    painter.drawLines(lines)
-            elif group == 2:  # potential tags: leader lines under the boxes, then box and text
-                painter.setPen(pen)
-                painter.drawLines([f[0] for f in figs])
-                stamp(painter, [f[1] for f in figs], (th.potential, fill), exact)
-                painter.setPen(pen)
-                for f in figs:
-                    text(f[2], f[3])
-            else:  # loop marks: arc and arrow head, then text
-                stamp(painter, [f[0] for f in figs], (fill,), exact)
-                painter.setPen(pen)
-                for _, at, st in figs:
-                    text(at, st)
+            image = QImage(max(1, round(w * dpr)), max(1, round(h * dpr)), QImage.Format.Format_ARGB32_Premultiplied)
+            image.setDevicePixelRatio(dpr)
+            image.fill(0)
+            p = QPainter(image)
+            p.setRenderHints(painter.renderHints())
+            p.setFont(small_font())
+            p.setWorldTransform(t)
+            self._paint_figures(p, group, figs, looks, False)
+            p.end()
+            pictures.append(image)
+        views = {id(v) for v in self.scene().views()}
+        self._kept = {k: v for k, v in self._kept.items() if k in views}
+        self._kept[id(view)] = (made_for, pictures)
+        return pictures
+
+    def _draw(self, painter: QPainter, areas: np.ndarray, looks: tuple, group: int, exact: bool,
+              which: int) -> None:
+        """Draw the marks of ``group`` meeting ``areas`` (``_figures``); ``exact``: shapes filled afresh."""
+        figs = self._figures(group, areas, which)
+        if figs:
+            self._paint_figures(painter, group, figs, looks, exact)
+
+    def _figures(self, group: int, areas: np.ndarray, which: int) -> list[tuple]:
+        """The figures of the visible marks of ``group`` meeting ``areas`` (rows of left, top,
+        right, bottom): all (``_ALL``), those kept (``_KEPT``) or those drawn over them (``_HOT``)."""
+        hot = self._hot_in[group]
+        if which == self._HOT and len(hot) * 2 < sum(map(len, self._cells[group].values())):
+            marks = self._within([m for m in hot.values() if m._visible], areas)  # fewer to look at
+        else:
+            marks = self._in_sight(group, *areas[0].tolist()) if len(areas) == 1 else self._meeting(group, areas)
+            if which != self._ALL:
+                drawn_over = which == self._HOT
+                marks = [m for m in marks if (id(m) in hot) == drawn_over] if hot or drawn_over else marks
+        return [m._fig or m.figure() for m in marks]
+
+    def _paint_figures(self, painter: QPainter, group: int, figs: list[tuple], looks: tuple, exact: bool) -> None:
+        """Draw ``figs`` (``_LayerPainted.figure``) of ``group`` with its look (pen, fill);
+        one loop per kind of stroke, with no call per mark but the drawing itself (hundreds
+        of marks are drawn on each repaint)."""
+        text, stamp = painter.drawStaticText, self._stamper.draw
+        pen, fill = looks[group]
+        if group < 2:  # part marks: arrow heads, then texts and lines
+            stamp(painter, [f[3] for f in figs if f[3] is not None], (fill,), exact)
+            painter.setPen(pen)
+            lines: list[QLineF] = []
+            for at, st, mark_lines, _ in figs:
+                text(at, st)
+                if mark_lines:
+                    lines += mark_lines
+            if lines:
+                painter.drawLines(lines)
+        elif group == 2:  # potential tags: leader lines under the boxes, then box and text
+            painter.setPen(pen)
+            painter.drawLines([f[0] for f in figs])
+            stamp(painter, [f[1] for f in figs], (pen.color(), fill), exact)  # rim, then inside
+            painter.setPen(pen)
+            for f in figs:
+                text(f[2], f[3])
+        else:  # loop marks: arc and arrow head, then text
+            stamp(painter, [f[0] for f in figs], (fill,), exact)
+            painter.setPen(pen)
+            for _, at, st in figs:
+                text(at, st)
 
 
 class _HungMark(_LayerPainted):
@@ -745,6 +898,8 @@ class _HungMark(_LayerPainted):
         (``repaint`` False: only take note, no view shows it large enough to draw)."""
         if repaint:
             self.repaint()
+        else:
+            self.layer.touch(self)
         self._fig = None
         self.layer.place(self, self.boundingRect().translated(self.pos()))
         if repaint:
@@ -886,6 +1041,8 @@ class LoopMark(_HungMark):
             self._fig = (*fig[:2], _text(text)[0])
             if readable:
                 self.repaint()
+            else:
+                self.layer.touch(self)
             return
         self.set_layout(self.side, self.compact, readable)
 

@@ -233,6 +233,10 @@ class SketchScene(QGraphicsScene):
             else:
                 item.update()
 
+    def drop_pictures(self) -> None:
+        """Forget the pictures of the reading marks the views keep (``ReadingLayer._kept_picture``)."""
+        self._readings.drop_pictures()
+
     drawn_exactly = False  # True while a picture file is made: every shape drawn afresh (shot.py)
 
     def drawBackground(self, painter: QPainter, rect: QRectF) -> None:  # noqa: N802 (Qt's name)

@@ -372,6 +372,14 @@ class CanvasView(QGraphicsView):
             self.scale(2.5, 2.5)
             self.centerOn(rect.center())
 
+    def resetCachedContent(self) -> None:  # noqa: N802 (Qt's name)
+        """Forget the kept picture of the paper and those the scene keeps for this view (the
+        reading marks'): the next repaint draws everything afresh."""
+        super().resetCachedContent()
+        drop = getattr(self.scene(), "drop_pictures", None)
+        if drop is not None:
+            drop()
+
     # -- background -------------------------------------------------------------------------
     exposed_region: QRegion | None = None  # while painting: the region being repainted (ReadingLayer reads it)
 

@@ -1,0 +1,161 @@
+"""The reading layer's kept pictures: marks that did not change come from a picture per view.
+
+When more than ``ReadingLayer.FEW`` marks change at once, those marks are drawn over the
+rest from then on, and each view keeps one picture per group of the others
+(``ReadingLayer._split``, ``_kept_pictures``). What the canvas shows must not depend on
+that: after every kind of edit it is held against
+
+- a repaint from nothing (``resetCachedContent`` drops the kept pictures), which finds a
+  picture left stale by a change it missed;
+- the layer drawn in one pass with no kept pictures and no marks drawn over the rest
+  (``KEEP`` off), as before the pictures existed, which finds marks drawn in a different
+  order of groups (a tag under the part marks it hangs among, say).
+
+Antialiased edges may differ by a shade, so a pixel counts as wrong only when a colour
+channel is more than 24 levels off (a text left behind or lost is far more).
+"""
+from __future__ import annotations
+
+import os
+import sys
+from pathlib import Path
+
+os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
+
+import numpy as np  # noqa: E402
+from PySide6.QtCore import QPointF  # noqa: E402
+
+from app.ui.annotations import ReadingLayer  # noqa: E402
+from ui_support import open_window, painted_canvas  # noqa: E402
+
+sys.path.insert(0, str(Path(__file__).resolve().parent / "bench"))
+from bench_live import grid_sketch  # noqa: E402
+
+
+def _canvas(win) -> np.ndarray:
+    im = painted_canvas(win)
+    rows = np.frombuffer(im.constBits(), np.uint8).reshape(im.height(), im.bytesPerLine())
+    return rows[:, :4 * im.width()].reshape(im.height(), im.width(), 4).astype(int)
+
+
+def _off(a: np.ndarray, b: np.ndarray) -> int:
+    return int((np.abs(a - b).max(axis=2) > 24).sum())
+
+
+def _from_nothing(win) -> np.ndarray:
+    win.view.resetCachedContent()
+    win.view.viewport().repaint()
+    return _canvas(win)
+
+
+def _in_one_pass(win, monkeypatch) -> np.ndarray:
+    """The canvas with every mark drawn in one pass, group by group, no picture kept."""
+    layer = win.scene._readings
+    with monkeypatch.context() as m:
+        m.setattr(ReadingLayer, "KEEP", False)
+        m.setattr(layer, "_hot", {})
+        m.setattr(layer, "_hot_in", tuple({} for _ in ReadingLayer.GROUPS))
+        return _from_nothing(win)
+
+
+def _settle(qtbot, win) -> None:
+    qtbot.waitUntil(lambda: not win.solver.busy)
+    win.scene.settle_marks()
+
+
+def _move(qtbot, win, name: str, dy: int) -> None:
+    win.scene.select([name])
+    win.editor.nudge(0, dy)
+    _settle(qtbot, win)
+
+
+def test_kept_pictures_show_what_drawing_every_mark_shows_through_moves_values_and_scrolls(qtbot, tmp_path,
+                                                                                         monkeypatch):
+    used = []
+    inner = ReadingLayer._kept_pictures
+    monkeypatch.setattr(ReadingLayer, "_kept_pictures",
+                        lambda self, *a: (used.append(r := inner(self, *a)), r)[1])
+    win = open_window(qtbot, tmp_path, grid_sketch(200), size=(1100, 700), centre=(80, 60))
+    names = [p.name for p in win.editor.sketch.parts if p.kind == "resistor"]
+    victim, other = names[len(names) // 2], names[5]
+    layer = win.scene._readings
+    steps = []
+    for whole in (False, True):
+        if whole:
+            win.view.zoom_fit()
+        for k in range(3):  # a part moved down and back: most values change, the same marks each time
+            _move(qtbot, win, victim, 1 if k % 2 == 0 else -1)
+            steps.append(("move", whole, k))
+        used.clear()
+        _move(qtbot, win, victim, 1)
+        _canvas(win)  # painted
+        assert any(p is not None for p in used), "the pictures are the path under test"
+        assert 0 < len(layer._hot) < layer._cell_of.__len__()
+        steps.append(("move with pictures", whole))
+        win.editor.set_values(other, {"resistance": 47.0})  # another part: kept marks change
+        _settle(qtbot, win)
+        steps.append(("value", whole))
+        _move(qtbot, win, victim, -1)
+        steps.append(("move after value", whole))
+        win.scene.set_layer("potentials", False)
+        steps.append(("tags off", whole))
+        win.scene.set_layer("potentials", True)
+        steps.append(("tags on", whole))
+        if not whole:
+            win.view.centerOn(QPointF(300, 200))  # a scroll: the pictures are of another place
+            _move(qtbot, win, victim, 1)
+            _move(qtbot, win, victim, -1)
+            steps.append(("scroll and move", whole))
+        shown = _canvas(win)
+        assert _off(shown, _from_nothing(win)) == 0, steps[-1]
+        assert _off(shown, _in_one_pass(win, monkeypatch)) == 0, steps[-1]
+
+
+def test_values_changed_while_too_small_to_read_are_not_shown_from_a_stale_picture(qtbot, tmp_path, monkeypatch):
+    """Marks take a new value without a repaint while no view can show them (zoomed far out);
+    coming back to the very zoom and place of the kept pictures must show the new values."""
+    win = open_window(qtbot, tmp_path, grid_sketch(200), size=(1100, 700), centre=(80, 60))
+    names = [p.name for p in win.editor.sketch.parts if p.kind == "resistor"]
+    victim = names[len(names) // 2]
+    for k in range(3):
+        _move(qtbot, win, victim, 1 if k % 2 == 0 else -1)
+    before = _canvas(win)
+    assert win.scene._readings._kept  # pictures kept of this view
+    transform = win.view.transform()
+    h, v = win.view.horizontalScrollBar().value(), win.view.verticalScrollBar().value()
+    win.view.scale(0.1, 0.1)
+    _settle(qtbot, win)
+    assert not win.scene.marks_readable()
+    win.editor.set_values(names[0], {"resistance": 3.3})  # near the cell: values everywhere change
+    _settle(qtbot, win)
+    win.view.setTransform(transform)
+    win.view.horizontalScrollBar().setValue(h)
+    win.view.verticalScrollBar().setValue(v)
+    win.view.viewport().repaint()
+    shown = _canvas(win)
+    assert _off(shown, before) > 0  # the new values are drawn
+    assert _off(shown, _from_nothing(win)) == 0
+    assert _off(shown, _in_one_pass(win, monkeypatch)) == 0
+
+
+def test_every_unseen_change_of_a_kept_mark_makes_the_pictures_stale(qtbot, tmp_path):
+    """The pictures are made for a count of changes to kept marks: a part mark or a loop mark
+    that takes a new text with no repaint (no view can read it) must still count."""
+    win = open_window(qtbot, tmp_path, grid_sketch(200), size=(1100, 700), centre=(80, 60))
+    names = [p.name for p in win.editor.sketch.parts if p.kind == "resistor"]
+    for k in range(3):
+        _move(qtbot, win, names[len(names) // 2], 1 if k % 2 == 0 else -1)
+    layer = win.scene._readings
+    kept = [item.current_mark for item in win.scene.part_items.values()
+            if item.current_mark is not None and item.current_mark.value and id(item.current_mark) not in layer._hot]
+    loops = [m for m in win.scene._loops if m.active and id(m) not in layer._hot]
+    assert kept and loops
+    loop = loops[0]
+    loop.set_layout(loop.side, False)  # its name and current shown, laid out as for a paint
+    loop.figure()
+    for change in (lambda: kept[0].set_value(kept[0].value * 1.5, readable=False),
+                   lambda: loop.set_loop(loop.name, 0.0123, loop.clockwise, readable=False),  # a new text
+                   lambda: loop.set_loop(loop.name, 0.0123, not loop.clockwise, readable=False)):  # turned
+        before = layer._changes
+        change()
+        assert layer._changes > before
