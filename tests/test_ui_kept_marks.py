@@ -26,16 +26,10 @@ import numpy as np  # noqa: E402
 from PySide6.QtCore import QPointF  # noqa: E402
 
 from app.ui.annotations import ReadingLayer  # noqa: E402
-from ui_support import open_window, painted_canvas  # noqa: E402
+from ui_support import canvas_pixels as _canvas, open_window  # noqa: E402
 
 sys.path.insert(0, str(Path(__file__).resolve().parent / "bench"))
 from bench_live import grid_sketch  # noqa: E402
-
-
-def _canvas(win) -> np.ndarray:
-    im = painted_canvas(win)
-    rows = np.frombuffer(im.constBits(), np.uint8).reshape(im.height(), im.bytesPerLine())
-    return rows[:, :4 * im.width()].reshape(im.height(), im.width(), 4).astype(int)
 
 
 def _off(a: np.ndarray, b: np.ndarray) -> int:

@@ -19,7 +19,7 @@ from PySide6.QtGui import QColor  # noqa: E402
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
 from app.ui.items import OnPaper  # noqa: E402
 from app.ui.theme import DARK, GRID, LIGHT, current_theme  # noqa: E402
-from ui_support import open_window, painted_canvas  # noqa: E402
+from ui_support import canvas_pixels as _pixels, open_window  # noqa: E402
 
 
 def loop_sketch() -> Sketch:
@@ -33,12 +33,6 @@ def loop_sketch() -> Sketch:
     s.add_wire(Wire(0, 4, 12, 4))
     s.add_part(PlacedPart("ground", "GND1", 0, 4))
     return s
-
-
-def _pixels(win) -> np.ndarray:
-    im = painted_canvas(win)
-    rows = np.frombuffer(im.constBits(), np.uint8).reshape(im.height(), im.bytesPerLine())
-    return rows[:, :4 * im.width()].reshape(im.height(), im.width(), 4).astype(int)
 
 
 def _stale(win) -> int:

@@ -3,6 +3,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
+import numpy as np
 import pytest
 from PySide6.QtCore import QPointF, QSettings
 from PySide6.QtGui import QGuiApplication, QImage
@@ -57,3 +58,10 @@ def painted_canvas(win: MainWindow) -> QImage:
     shot = QGuiApplication.primaryScreen().grabWindow(win.winId()).toImage()
     at = vp.mapTo(win, vp.rect().topLeft())
     return shot.copy(at.x(), at.y(), vp.width(), vp.height()).convertToFormat(QImage.Format.Format_RGB32)
+
+
+def canvas_pixels(win: MainWindow) -> np.ndarray:
+    """The canvas's last painted pixels (``painted_canvas``) as [y, x, channel] integers (B, G, R, A)."""
+    im = painted_canvas(win)
+    rows = np.frombuffer(im.constBits(), np.uint8).reshape(im.height(), im.bytesPerLine())
+    return rows[:, :4 * im.width()].reshape(im.height(), im.width(), 4).astype(int)
