@@ -14,7 +14,8 @@ from functools import lru_cache
 
 import numpy as np
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
-from PySide6.QtGui import QFontMetricsF, QImage, QPainter, QPainterPath, QPen, QPolygonF, QStaticText, QTextOption
+from PySide6.QtGui import (QFontMetricsF, QImage, QPainter, QPainterPath, QPen, QPolygonF, QStaticText, QTextOption,
+                           QTransform)
 from PySide6.QtWidgets import QGraphicsItem, QStyleOptionGraphicsItem, QWidget
 
 from ..units import format_value
@@ -545,7 +546,7 @@ class ReadingLayer(QGraphicsItem):
         self._hot_in: tuple[dict[int, QGraphicsItem], ...] = tuple({} for _ in self.GROUPS)  # per group
         self._split_count = 0  # how often the marks were split into kept and changing ones
         self._changes = 0  # how often a kept mark changed: a picture of them made before is stale
-        self._kept: dict[int, tuple[tuple, list[QImage | None]]] = {}  # per view: (made for, a picture per group)
+        self._kept: dict[int, tuple[tuple, list]] = {}  # per view: (made for, (corner, picture) per group)
 
     FEW = 150  # up to this many boxes in one hold are repainted each on its own, more as one box
 
@@ -762,21 +763,26 @@ class ReadingLayer(QGraphicsItem):
             if kept is None:
                 self._draw(painter, areas, looks, group, False, self._KEPT)
             elif kept[group] is not None:
+                at, image = kept[group]
                 painter.save()
                 painter.resetTransform()
-                painter.drawImage(0, 0, kept[group])
+                painter.drawImage(at, image)
                 painter.restore()
             self._draw(painter, areas, looks, group, False, self._HOT)
 
     _ALL, _KEPT, _HOT = range(3)  # which marks of a group ``_draw`` draws
 
     def _kept_pictures(self, painter: QPainter, widget: QWidget | None, th: Theme,
-                       looks: tuple) -> list[QImage | None] | None:
+                       looks: tuple) -> list[tuple[QPointF, QImage] | None] | None:
         """Per group, the picture of its kept marks (those not drawn over the rest, see
-        ``_split``) that the view being painted keeps (None: no kept mark of the group in
-        sight), made anew when the whole view is repainted and the pictures are stale: kept
-        marks changed, or the view zoomed, scrolled or was resized. None when there are none
-        to use (the marks are then drawn).
+        ``_split``) that the view being painted keeps, and where its corner goes in the view
+        (None: no kept mark of the group in sight). Made anew when the whole view is
+        repainted and the pictures are stale: kept marks changed, or the view zoomed,
+        scrolled or was resized. None when there are none to use (the marks are then drawn).
+
+        A picture covers the marks' boxes (every mark draws inside its box), not the whole
+        view: copying it costs by the pixel. Its corner lies on a device pixel, so the marks
+        land on the pixels a direct drawing puts them on.
 
         One picture per group, not one for all, keeps the groups' order: a tag drawn over
         the part marks it hangs among stays over them whether they change or not.
@@ -795,22 +801,31 @@ class ReadingLayer(QGraphicsItem):
             return None  # a part of the view: drawing the marks in it costs less than new pictures
         r = t.inverted()[0].mapRect(QRectF(0, 0, w, h))
         areas = np.array([[r.left(), r.top(), r.right(), r.bottom()]])
-        pictures: list[QImage | None] = []
+        pictures: list[tuple[QPointF, QImage] | None] = []
         for group in range(len(self.GROUPS)):
-            figs = self._figures(group, areas, self._KEPT)
-            if not figs:
+            marks = self._marks(group, areas, self._KEPT)
+            if not marks:
                 pictures.append(None)
                 continue
-            image = QImage(max(1, round(w * dpr)), max(1, round(h * dpr)), QImage.Format.Format_ARGB32_Premultiplied)
+            boxes = np.array([m._scene_box for m in marks])
+            (left, top), (right, bottom) = boxes[:, :2].min(axis=0).tolist(), boxes[:, 2:].max(axis=0).tolist()
+            d = t.mapRect(QRectF(left, top, right - left, bottom - top)).intersected(QRectF(0, 0, w, h))
+            x0, y0 = math.floor(d.left() * dpr) - 1, math.floor(d.top() * dpr) - 1
+            x1, y1 = math.ceil(d.right() * dpr) + 1, math.ceil(d.bottom() * dpr) + 1
+            if x1 <= x0 + 2 or y1 <= y0 + 2:
+                pictures.append(None)
+                continue
+            image = QImage(x1 - x0, y1 - y0, QImage.Format.Format_ARGB32_Premultiplied)
             image.setDevicePixelRatio(dpr)
             image.fill(0)
+            at = QPointF(x0 / dpr, y0 / dpr)
             p = QPainter(image)
             p.setRenderHints(painter.renderHints())
             p.setFont(small_font())
-            p.setWorldTransform(t)
-            self._paint_figures(p, group, figs, looks, False)
+            p.setWorldTransform(t * QTransform.fromTranslate(-at.x(), -at.y()))
+            self._paint_figures(p, group, [m._fig or m.figure() for m in marks], looks, False)
             p.end()
-            pictures.append(image)
+            pictures.append((at, image))
         views = {id(v) for v in self.scene().views()}
         self._kept = {k: v for k, v in self._kept.items() if k in views}
         self._kept[id(view)] = (made_for, pictures)
@@ -824,8 +839,12 @@ class ReadingLayer(QGraphicsItem):
             self._paint_figures(painter, group, figs, looks, exact)
 
     def _figures(self, group: int, areas: np.ndarray, which: int) -> list[tuple]:
-        """The figures of the visible marks of ``group`` meeting ``areas`` (rows of left, top,
-        right, bottom): all (``_ALL``), those kept (``_KEPT``) or those drawn over them (``_HOT``)."""
+        """The figures of ``_marks``."""
+        return [m._fig or m.figure() for m in self._marks(group, areas, which)]
+
+    def _marks(self, group: int, areas: np.ndarray, which: int) -> list:
+        """The visible marks of ``group`` meeting ``areas`` (rows of left, top, right, bottom):
+        all (``_ALL``), those kept (``_KEPT``) or those drawn over them (``_HOT``)."""
         hot = self._hot_in[group]
         if which == self._HOT and len(hot) * 2 < sum(map(len, self._cells[group].values())):
             marks = self._within([m for m in hot.values() if m._visible], areas)  # fewer to look at
@@ -834,7 +853,7 @@ class ReadingLayer(QGraphicsItem):
             if which != self._ALL:
                 drawn_over = which == self._HOT
                 marks = [m for m in marks if (id(m) in hot) == drawn_over] if hot or drawn_over else marks
-        return [m._fig or m.figure() for m in marks]
+        return marks
 
     def _paint_figures(self, painter: QPainter, group: int, figs: list[tuple], looks: tuple, exact: bool) -> None:
         """Draw ``figs`` (``_LayerPainted.figure``) of ``group`` with its look (pen, fill);
