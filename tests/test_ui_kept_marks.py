@@ -74,22 +74,47 @@ def test_kept_pictures_show_what_drawing_every_mark_shows_through_moves_values_a
     victim, other = names[len(names) // 2], names[5]
     layer = win.scene._readings
     steps = []
+    down = [False]
+
+    def toggle() -> None:  # the part off its grid point and back on: most values change, the same marks each time
+        _move(qtbot, win, victim, -1 if down[0] else 1)
+        down[0] = not down[0]
+
     for whole in (False, True):
         if whole:
             win.view.zoom_fit()
-        for k in range(3):  # a part moved down and back: most values change, the same marks each time
-            _move(qtbot, win, victim, 1 if k % 2 == 0 else -1)
+        for k in range(3):
+            toggle()
             steps.append(("move", whole, k))
         used.clear()
-        _move(qtbot, win, victim, 1)
+        toggle()
         _canvas(win)  # painted
-        assert any(p is not None for p in used), "the pictures are the path under test"
-        assert 0 < len(layer._hot) < layer._cell_of.__len__()
-        steps.append(("move with pictures", whole))
-        win.editor.set_values(other, {"resistance": 47.0})  # another part: kept marks change
+        assert any(p is not None for p in used), ("the pictures are the path under test", whole)
+        assert 0 < len(layer._hot) < len(layer._cell_of)
+        shown = _canvas(win)  # as the kept pictures drew it
+        assert _off(shown, _from_nothing(win)) == 0, ("move with pictures", whole)
+        assert _off(shown, _in_one_pass(win, monkeypatch)) == 0, ("move with pictures", whole)
+        toggle()  # pictures made afresh, then used
+        toggle()
+        gone = next(n for n in names if n != victim and id(win.scene.part_items[n].current_mark) in layer._hot)
+        win.scene.select([gone])  # a part whose marks are drawn over the rest
+        gone_marks = {id(win.scene.part_items[gone].current_mark), id(win.scene.part_items[gone].drop_mark)}
+        win.editor.delete_selection()
+        _settle(qtbot, win)
+        assert not gone_marks & layer._hot.keys()  # nothing holds the marks of a part no longer drawn
+        assert not any(gone_marks & d.keys() for d in layer._hot_in)
+        shown = _canvas(win)  # no marks of the deleted part left behind
+        assert _off(shown, _from_nothing(win)) == 0, ("delete", whole)
+        assert _off(shown, _in_one_pass(win, monkeypatch)) == 0, ("delete", whole)
+        win.stack.undo()
+        _settle(qtbot, win)
+        steps.append(("undo", whole))
+        toggle()
+        steps.append(("move after undo", whole))
+        win.editor.set_values(other, {"resistance": 47.0 if whole else 68.0})  # another part: kept marks change
         _settle(qtbot, win)
         steps.append(("value", whole))
-        _move(qtbot, win, victim, -1)
+        toggle()
         steps.append(("move after value", whole))
         win.scene.set_layer("potentials", False)
         steps.append(("tags off", whole))
@@ -97,12 +122,12 @@ def test_kept_pictures_show_what_drawing_every_mark_shows_through_moves_values_a
         steps.append(("tags on", whole))
         if not whole:
             win.view.centerOn(QPointF(300, 200))  # a scroll: the pictures are of another place
-            _move(qtbot, win, victim, 1)
-            _move(qtbot, win, victim, -1)
+            toggle()
+            toggle()
             steps.append(("scroll and move", whole))
-        shown = _canvas(win)
-        assert _off(shown, _from_nothing(win)) == 0, steps[-1]
-        assert _off(shown, _in_one_pass(win, monkeypatch)) == 0, steps[-1]
+        shown = _canvas(win)  # after repaints of regions and of the whole view, with pictures fresh or stale
+        assert _off(shown, _from_nothing(win)) == 0, steps
+        assert _off(shown, _in_one_pass(win, monkeypatch)) == 0, steps
 
 
 def test_values_changed_while_too_small_to_read_are_not_shown_from_a_stale_picture(qtbot, tmp_path, monkeypatch):

@@ -547,6 +547,7 @@ class ReadingLayer(QGraphicsItem):
         self._split_count = 0  # how often the marks were split into kept and changing ones
         self._changes = 0  # how often a kept mark changed: a picture of them made before is stale
         self._kept: dict[int, tuple[tuple, list]] = {}  # per view: (made for, (corner, picture) per group)
+        self._wanted: set[int] = set()  # views repainted whole for many changed marks since their last pictures
 
     FEW = 150  # up to this many boxes in one hold are repainted each on its own, more as one box
 
@@ -603,6 +604,7 @@ class ReadingLayer(QGraphicsItem):
         self._split_count += 1
         scene = self.scene()
         for view in scene.views() if scene is not None else ():
+            self._wanted.add(id(view))
             view.viewport().update()
 
     def drop_pictures(self) -> None:
@@ -649,6 +651,7 @@ class ReadingLayer(QGraphicsItem):
         for view in scene.views():
             viewport = view.viewport()
             if view.mapFromScene(box).boundingRect().intersects(viewport.rect()):
+                self._wanted.add(id(view))
                 viewport.update()
 
     CELL = 256.0  # marks are filed by the cell of their box's top left corner, this size
@@ -778,7 +781,9 @@ class ReadingLayer(QGraphicsItem):
         ``_split``) that the view being painted keeps, and where its corner goes in the view
         (None: no kept mark of the group in sight). Made anew when the whole view is
         repainted and the pictures are stale: kept marks changed, or the view zoomed,
-        scrolled or was resized. None when there are none to use (the marks are then drawn).
+        scrolled or was resized; only for a repaint asked for by many changed marks (``_wanted``):
+        a zoom step or a resize repaints the whole view too, but the next one soon leaves
+        the pictures. None when there are none to use (the marks are then drawn).
 
         A picture covers the marks' boxes (every mark draws inside its box), not the whole
         view: copying it costs by the pixel. Its corner lies on a device pixel, so the marks
@@ -799,6 +804,9 @@ class ReadingLayer(QGraphicsItem):
             return kept[1]
         if region.rectCount() != 1 or not region.boundingRect().contains(widget.rect()):
             return None  # a part of the view: drawing the marks in it costs less than new pictures
+        if id(view) not in self._wanted:
+            return None  # not repainted for many changed marks (a zoom step, say): no use for pictures yet
+        self._wanted.discard(id(view))
         r = t.inverted()[0].mapRect(QRectF(0, 0, w, h))
         areas = np.array([[r.left(), r.top(), r.right(), r.bottom()]])
         pictures: list[tuple[QPointF, QImage] | None] = []
