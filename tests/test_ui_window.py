@@ -74,3 +74,21 @@ def test_shot_writes_png_and_svg(qtbot, tmp_path):
     assert "<svg" in text and "40.0 mA" in text  # 12 V across 300 Ω (Ohm's law)
     with pytest.raises(ValueError, match="png or .svg"):
         render(path, tmp_path / "loop.bmp")
+
+
+def test_a_window_of_laptop_height_keeps_its_size_when_a_part_is_selected(qtbot, tmp_path):
+    """The side panels share one column; selecting a part shows its value rows. On a 768-pixel
+    screen (a common laptop, from memory) a 700-pixel window must keep its size and the canvas
+    must not move under the pointer: the panels that can scroll do, the part's values show whole."""
+    from PySide6.QtWidgets import QApplication
+
+    win = open_window(qtbot, tmp_path, one_loop(), size=(1100, 700))
+    QApplication.processEvents()
+    before = win.view.mapToScene(win.view.viewport().rect().center())
+    win.scene.select(["R1"])
+    QApplication.processEvents()
+    assert win.height() == 700
+    assert win.minimumSizeHint().height() <= 700
+    assert win.view.mapToScene(win.view.viewport().rect().center()) == before
+    panel = win.part_dock.widget()
+    assert panel is win.part_panel and panel.height() >= panel.minimumSizeHint().height()

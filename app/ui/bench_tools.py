@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from PySide6.QtCore import QEvent, QObject, Qt
 from PySide6.QtGui import QAction, QPen
-from PySide6.QtWidgets import QDockWidget, QGraphicsEllipseItem
+from PySide6.QtWidgets import QGraphicsEllipseItem
 
 from solver import CircuitError, solve
 
@@ -21,6 +21,7 @@ from .cautions_panel import CautionsPanel
 from .items import Z_MARK, to_scene
 from .theme import current_theme
 from .tools_dialogs import EquivalentDialog, PreferredValuesDialog
+from .docks import add_dock
 
 __all__ = ["BenchTools", "meter_effects"]
 
@@ -75,10 +76,7 @@ class BenchTools:
     def __init__(self, win) -> None:
         self.win = win
         self.panel = CautionsPanel()
-        self.dock = QDockWidget("Cautions", win)
-        self.dock.setObjectName("cautions")
-        self.dock.setWidget(self.panel)
-        win.addDockWidget(Qt.DockWidgetArea.RightDockWidgetArea, self.dock)
+        self.dock = add_dock(win, "Cautions", "cautions", self.panel)
         self.panel.partsChosen.connect(self._select)
         self.marks: BenchMarks | None = None
         self.cautions: list[Caution] = []

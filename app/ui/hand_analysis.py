@@ -20,6 +20,7 @@ from .highlight import Highlight, junction_point, loop_segments, part_segments
 from .items import PartItem
 from .tags import TagCommand, TagLayer, suggest_tag_name, tag_name_problem
 from .trace import LoopTracer
+from .docks import add_dock
 
 __all__ = ["HandAnalysis"]
 
@@ -64,11 +65,7 @@ class HandAnalysis:
         self._syncing = False
 
     def _dock(self, title: str, name: str, widget) -> QDockWidget:
-        dock = QDockWidget(title, self.win)
-        dock.setObjectName(name)
-        dock.setWidget(widget)
-        self.win.addDockWidget(Qt.DockWidgetArea.RightDockWidgetArea, dock)
-        return dock
+        return add_dock(self.win, title, name, widget)
 
     def menu_actions(self) -> list:
         """Actions for the window's menus: the tag actions and the loop tracer."""

@@ -9,7 +9,7 @@ from pathlib import Path
 
 from PySide6.QtCore import QEvent, QItemSelection, QItemSelectionModel, QSettings, Qt, QTimer, Signal
 from PySide6.QtGui import QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QUndoStack
-from PySide6.QtWidgets import (QApplication, QDockWidget, QFileDialog, QLabel, QMainWindow,
+from PySide6.QtWidgets import (QApplication, QFileDialog, QLabel, QMainWindow,
                                QMessageBox, QToolBar, QToolButton, QVBoxLayout, QWidget)
 
 from ..sketch.fileio import SaveError, SketchFileError, load_sketch, save_sketch
@@ -18,6 +18,7 @@ from ..sketch.model import Sketch
 from .annotations import LAYERS
 from .editor import FRAGMENT_MIME, Editor
 from .bench_tools import BenchTools
+from .docks import add_dock
 from .hand_analysis import HandAnalysis
 from .icons import tool_icon
 from .properties import InlineValueEditor, PartPanel
@@ -207,14 +208,8 @@ class MainWindow(QMainWindow):
         lay = QVBoxLayout(host)
         lay.setContentsMargins(4, 4, 4, 4)
         lay.addWidget(self.readings)
-        self.readings_dock = QDockWidget("Readings", self)
-        self.readings_dock.setObjectName("readings")
-        self.readings_dock.setWidget(host)
-        self.addDockWidget(Qt.DockWidgetArea.RightDockWidgetArea, self.readings_dock)
-        self.part_dock = QDockWidget("Part", self)
-        self.part_dock.setObjectName("part")
-        self.part_dock.setWidget(self.part_panel)
-        self.addDockWidget(Qt.DockWidgetArea.RightDockWidgetArea, self.part_dock)
+        self.readings_dock = add_dock(self, "Readings", "readings", host, scroll=False)  # its table scrolls
+        self.part_dock = add_dock(self, "Part", "part", self.part_panel, scroll=False)  # values in full
 
     def _build_menus(self) -> None:
         mb = self.menuBar()
