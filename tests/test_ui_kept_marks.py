@@ -52,6 +52,13 @@ def _in_one_pass(win, monkeypatch) -> np.ndarray:
         return _from_nothing(win)
 
 
+def _drawn(win, monkeypatch) -> np.ndarray:
+    """The canvas with the marks drawn, none copied from a picture (the same marks drawn over the rest)."""
+    with monkeypatch.context() as m:
+        m.setattr(ReadingLayer, "KEEP", False)
+        return _from_nothing(win)
+
+
 def _settle(qtbot, win) -> None:
     qtbot.waitUntil(lambda: not win.solver.busy)
     win.scene.settle_marks()
@@ -178,3 +185,33 @@ def test_every_unseen_change_of_a_kept_mark_makes_the_pictures_stale(qtbot, tmp_
         before = layer._changes
         change()
         assert layer._changes > before
+
+
+def test_a_part_dragged_with_the_mouse_leaves_the_canvas_as_a_full_repaint_draws_it(qtbot, tmp_path, monkeypatch):
+    """Real mouse drags of a part off its grid point and back, painted after every one, as a
+    person drags: from the second on, the marks that did not change come from kept pictures."""
+    from test_ui_drawing import drag
+
+    used = []
+    inner = ReadingLayer._kept_pictures
+    monkeypatch.setattr(ReadingLayer, "_kept_pictures",
+                        lambda self, *a: (used.append(r := inner(self, *a)), r)[1])
+    win = open_window(qtbot, tmp_path, grid_sketch(200), size=(1100, 700), centre=(80, 60))
+    names = [p.name for p in win.editor.sketch.parts if p.kind == "resistor"]
+    part = win.editor.sketch.part(names[len(names) // 2])
+    mid = (part.x + 1, part.y) if part.rotation == 0 else (part.x, part.y + 1)  # on its body, off the middle (an upright part has its middle there too)
+    _canvas(win)
+    win.view.resetTransform()  # at 100 %, the part in the middle of the view
+    win.view.centerOn(QPointF(mid[0] * 20.0, mid[1] * 20.0))
+    _canvas(win)
+    for k in range(4):
+        a, b = (mid, (mid[0], mid[1] + 1)) if k % 2 == 0 else ((mid[0], mid[1] + 1), mid)
+        drag(win, a, b)
+        _settle(qtbot, win)
+        assert win.editor.sketch.part(part.name).y == part.y + (1 if k % 2 == 0 else 0)
+        used.clear()
+        shown = _canvas(win)
+    assert any(p is not None for p in used)
+    assert _off(shown, _from_nothing(win)) == 0
+    assert _off(shown, _drawn(win, monkeypatch)) == 0
+    assert _off(shown, _in_one_pass(win, monkeypatch)) == 0

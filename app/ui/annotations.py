@@ -787,7 +787,8 @@ class ReadingLayer(QGraphicsItem):
 
         A picture covers the marks' boxes (every mark draws inside its box), not the whole
         view: copying it costs by the pixel. Its corner lies on a device pixel, so the marks
-        land on the pixels a direct drawing puts them on.
+        land on the pixels a direct drawing puts them on; it takes in the whole boxes of marks
+        the view's edge cuts, so no text starts left of or above it.
 
         One picture per group, not one for all, keeps the groups' order: a tag drawn over
         the part marks it hangs among stays over them whether they change or not.
@@ -817,7 +818,9 @@ class ReadingLayer(QGraphicsItem):
                 continue
             boxes = np.array([m._scene_box for m in marks])
             (left, top), (right, bottom) = boxes[:, :2].min(axis=0).tolist(), boxes[:, 2:].max(axis=0).tolist()
-            d = t.mapRect(QRectF(left, top, right - left, bottom - top)).intersected(QRectF(0, 0, w, h))
+            # whole boxes, also of marks the view's edge cuts: a text drawn from left of a
+            # picture's edge lands a pixel off (glyph positions below zero are cut toward it)
+            d = t.mapRect(QRectF(left, top, right - left, bottom - top))
             x0, y0 = math.floor(d.left() * dpr) - 1, math.floor(d.top() * dpr) - 1
             x1, y1 = math.ceil(d.right() * dpr) + 1, math.ceil(d.bottom() * dpr) + 1
             if x1 <= x0 + 2 or y1 <= y0 + 2:
