@@ -59,6 +59,20 @@ def _drawn(win, monkeypatch) -> np.ndarray:
         return _from_nothing(win)
 
 
+def _watch_pictures(monkeypatch) -> list:
+    """What ``ReadingLayer._kept_pictures`` returns from now on, call by call (None: marks drawn)."""
+    used = []
+    inner = ReadingLayer._kept_pictures
+    monkeypatch.setattr(ReadingLayer, "_kept_pictures", lambda self, *a: (used.append(r := inner(self, *a)), r)[1])
+    return used
+
+
+def _grid_window(qtbot, tmp_path):
+    """A window on the 200-part grid of ``bench_live``, and its resistors' names."""
+    win = open_window(qtbot, tmp_path, grid_sketch(200), size=(1100, 700), centre=(80, 60))
+    return win, [p.name for p in win.editor.sketch.parts if p.kind == "resistor"]
+
+
 def _settle(qtbot, win) -> None:
     qtbot.waitUntil(lambda: not win.solver.busy)
     win.scene.settle_marks()
@@ -72,12 +86,8 @@ def _move(qtbot, win, name: str, dy: int) -> None:
 
 def test_kept_pictures_show_what_drawing_every_mark_shows_through_moves_values_and_scrolls(qtbot, tmp_path,
                                                                                          monkeypatch):
-    used = []
-    inner = ReadingLayer._kept_pictures
-    monkeypatch.setattr(ReadingLayer, "_kept_pictures",
-                        lambda self, *a: (used.append(r := inner(self, *a)), r)[1])
-    win = open_window(qtbot, tmp_path, grid_sketch(200), size=(1100, 700), centre=(80, 60))
-    names = [p.name for p in win.editor.sketch.parts if p.kind == "resistor"]
+    used = _watch_pictures(monkeypatch)
+    win, names = _grid_window(qtbot, tmp_path)
     victim, other = names[len(names) // 2], names[5]
     layer = win.scene._readings
     steps = []
@@ -140,8 +150,7 @@ def test_kept_pictures_show_what_drawing_every_mark_shows_through_moves_values_a
 def test_values_changed_while_too_small_to_read_are_not_shown_from_a_stale_picture(qtbot, tmp_path, monkeypatch):
     """Marks take a new value without a repaint while no view can show them (zoomed far out);
     coming back to the very zoom and place of the kept pictures must show the new values."""
-    win = open_window(qtbot, tmp_path, grid_sketch(200), size=(1100, 700), centre=(80, 60))
-    names = [p.name for p in win.editor.sketch.parts if p.kind == "resistor"]
+    win, names = _grid_window(qtbot, tmp_path)
     victim = names[len(names) // 2]
     for k in range(3):
         _move(qtbot, win, victim, 1 if k % 2 == 0 else -1)
@@ -167,8 +176,7 @@ def test_values_changed_while_too_small_to_read_are_not_shown_from_a_stale_pictu
 def test_every_unseen_change_of_a_kept_mark_makes_the_pictures_stale(qtbot, tmp_path):
     """The pictures are made for a count of changes to kept marks: a part mark or a loop mark
     that takes a new text with no repaint (no view can read it) must still count."""
-    win = open_window(qtbot, tmp_path, grid_sketch(200), size=(1100, 700), centre=(80, 60))
-    names = [p.name for p in win.editor.sketch.parts if p.kind == "resistor"]
+    win, names = _grid_window(qtbot, tmp_path)
     for k in range(3):
         _move(qtbot, win, names[len(names) // 2], 1 if k % 2 == 0 else -1)
     layer = win.scene._readings
@@ -192,12 +200,8 @@ def test_a_part_dragged_with_the_mouse_leaves_the_canvas_as_a_full_repaint_draws
     person drags: from the second on, the marks that did not change come from kept pictures."""
     from test_ui_drawing import drag
 
-    used = []
-    inner = ReadingLayer._kept_pictures
-    monkeypatch.setattr(ReadingLayer, "_kept_pictures",
-                        lambda self, *a: (used.append(r := inner(self, *a)), r)[1])
-    win = open_window(qtbot, tmp_path, grid_sketch(200), size=(1100, 700), centre=(80, 60))
-    names = [p.name for p in win.editor.sketch.parts if p.kind == "resistor"]
+    used = _watch_pictures(monkeypatch)
+    win, names = _grid_window(qtbot, tmp_path)
     part = win.editor.sketch.part(names[len(names) // 2])
     mid = (part.x + 1, part.y) if part.rotation == 0 else (part.x, part.y + 1)  # on its body, off the middle (an upright part has its middle there too)
     _canvas(win)
