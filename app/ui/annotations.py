@@ -560,12 +560,9 @@ class ReadingLayer(QGraphicsItem):
             self._changes += 1
 
     def repaint_mark(self, mark: QGraphicsItem, box: tuple[float, float, float, float]) -> None:
-        """``mark`` changed: paint its scene box (left, top, right, bottom) again."""
+        """``mark`` changed (``touch``): paint its scene box (left, top, right, bottom) again,
+        at the end of a ``hold``."""
         self.touch(mark)
-        self.repaint_box(box)
-
-    def repaint_box(self, box: tuple[float, float, float, float]) -> None:
-        """Paint a scene box (left, top, right, bottom) again (at the end of a ``hold``)."""
         if box[2] <= box[0]:
             return
         if self._held is not None:
@@ -834,7 +831,7 @@ class ReadingLayer(QGraphicsItem):
             p.setRenderHints(painter.renderHints())
             p.setFont(small_font())
             p.setWorldTransform(t * QTransform.fromTranslate(-at.x(), -at.y()))
-            self._paint_figures(p, group, [m._fig or m.figure() for m in marks], looks, False)
+            self._paint_marks(p, group, marks, looks, False)
             p.end()
             pictures.append((at, image))
         views = {id(v) for v in self.scene().views()}
@@ -844,14 +841,10 @@ class ReadingLayer(QGraphicsItem):
 
     def _draw(self, painter: QPainter, areas: np.ndarray, looks: tuple, group: int, exact: bool,
               which: int) -> None:
-        """Draw the marks of ``group`` meeting ``areas`` (``_figures``); ``exact``: shapes filled afresh."""
-        figs = self._figures(group, areas, which)
-        if figs:
-            self._paint_figures(painter, group, figs, looks, exact)
-
-    def _figures(self, group: int, areas: np.ndarray, which: int) -> list[tuple]:
-        """The figures of ``_marks``."""
-        return [m._fig or m.figure() for m in self._marks(group, areas, which)]
+        """Draw the marks of ``group`` meeting ``areas`` (``_marks``); ``exact``: shapes filled afresh."""
+        marks = self._marks(group, areas, which)
+        if marks:
+            self._paint_marks(painter, group, marks, looks, exact)
 
     def _marks(self, group: int, areas: np.ndarray, which: int) -> list:
         """The visible marks of ``group`` meeting ``areas`` (rows of left, top, right, bottom):
@@ -861,15 +854,16 @@ class ReadingLayer(QGraphicsItem):
             marks = self._within([m for m in hot.values() if m._visible], areas)  # fewer to look at
         else:
             marks = self._in_sight(group, *areas[0].tolist()) if len(areas) == 1 else self._meeting(group, areas)
-            if which != self._ALL:
+            if which != self._ALL and hot:
                 drawn_over = which == self._HOT
-                marks = [m for m in marks if (id(m) in hot) == drawn_over] if hot or drawn_over else marks
+                marks = [m for m in marks if (id(m) in hot) == drawn_over]
         return marks
 
-    def _paint_figures(self, painter: QPainter, group: int, figs: list[tuple], looks: tuple, exact: bool) -> None:
-        """Draw ``figs`` (``_LayerPainted.figure``) of ``group`` with its look (pen, fill);
-        one loop per kind of stroke, with no call per mark but the drawing itself (hundreds
-        of marks are drawn on each repaint)."""
+    def _paint_marks(self, painter: QPainter, group: int, marks: list, looks: tuple, exact: bool) -> None:
+        """Draw ``marks`` of ``group`` (their ``figure``) with its look (pen, fill); one loop
+        per kind of stroke, with no call per mark but the drawing itself (hundreds of marks
+        are drawn on each repaint)."""
+        figs = [m._fig or m.figure() for m in marks]
         text, stamp = painter.drawStaticText, self._stamper.draw
         pen, fill = looks[group]
         if group < 2:  # part marks: arrow heads, then texts and lines

@@ -234,7 +234,7 @@ class SketchScene(QGraphicsScene):
                 item.update()
 
     def drop_pictures(self) -> None:
-        """Forget the pictures of the reading marks the views keep (``ReadingLayer._kept_picture``)."""
+        """Forget the pictures of the reading marks the views keep (``ReadingLayer._kept_pictures``)."""
         self._readings.drop_pictures()
 
     drawn_exactly = False  # True while a picture file is made: every shape drawn afresh (shot.py)
