@@ -7,6 +7,8 @@ that: after every kind of edit it is held against
 
 - a repaint from nothing (``resetCachedContent`` drops the kept pictures), which finds a
   picture left stale by a change it missed;
+- the same marks drawn with no picture (``KEEP`` off, the split kept), which finds a
+  picture that lands marks on other pixels than drawing them does;
 - the layer drawn in one pass with no kept pictures and no marks drawn over the rest
   (``KEEP`` off), as before the pictures existed, which finds marks drawn in a different
   order of groups (a tag under the part marks it hangs among, say).
