@@ -18,6 +18,10 @@ free again; large sketches are solved on a worker thread after that), and
 "updated" until the newest solution is on the drawing and the canvas has
 repainted (the "paints" column counts canvas repaints per edit, to show the
 painting is inside the time).
+
+This host is shared and its speed swings (up to 1.7x within minutes has been seen), so
+each run also times a fixed pure-Python yardstick (``yardstick_ms``) before and after:
+figures from runs whose yardsticks differ are from hosts of different speed.
 """
 from __future__ import annotations
 
@@ -99,6 +103,29 @@ def measure(app: QApplication, win: MainWindow, edit, reps: int, paints: PaintCo
     return handled, updated, painted / reps
 
 
+def yardstick_ms(clock=time.perf_counter) -> float:
+    """The median time of a fixed pure-Python job (dict, attribute and call work, as the
+    edits do), over nine runs: how fast the host is right now."""
+    class Box:
+        __slots__ = ("v",)
+
+        def __init__(self, v: float) -> None:
+            self.v = v
+
+    def job() -> float:
+        d = {}
+        for i in range(20000):
+            d[i % 997] = Box(i * 0.5)
+        return sum(b.v for b in d.values())
+
+    times = []
+    for _ in range(9):
+        t0 = clock()
+        job()
+        times.append((clock() - t0) * 1000.0)
+    return statistics.median(times)
+
+
 def p95(xs: list[float]) -> float:
     xs = sorted(xs)
     return xs[min(len(xs) - 1, math.ceil(0.95 * len(xs)) - 1)]
@@ -123,6 +150,7 @@ def main(argv: list[str]) -> int:
     if os.path.exists(ini):
         os.remove(ini)
     settings = QSettings(ini, QSettings.Format.IniFormat)
+    before = yardstick_ms(clock)
     print(f"{'parts':>6} {'view':<12} {'edit':<14} {'handled: median':>15} {'p95':>6}   "
           f"{'updated: median':>15} {'p95':>6} {'paints':>6}  target (updated p95)")
     for (n, reps), zoom in [(c, z) for c in sizes for z in ("100 %", "whole sketch")]:
@@ -165,6 +193,7 @@ def main(argv: list[str]) -> int:
         win.close()
         win.deleteLater()
         app.processEvents()
+    print(f"host yardstick (a fixed pure-Python job): {before:.2f} ms before, {yardstick_ms(clock):.2f} ms after")
     return 0
 
 
