@@ -235,3 +235,29 @@ def test_meter_effects_and_branch_names_report_only_the_parts_they_change(qtbot)
     model.set_branch_names({**{n: "Ia" for n in names}, "R3": "\u2212Ib"})
     assert spy.rows(BRANCH) == {model.row_of("R3")} and spy.rows(EFFECT) == set()
     assert model.text(model.row_of("R3"), BRANCH) == "\u2212Ib"
+
+
+def test_values_that_arrive_later_are_not_cut_short_by_columns_fitted_to_zeros(qtbot, tmp_path):
+    # B1 9 V, S1 open, R1 and R2 1 kΩ in series: the first solution is all zeros ("0 A"), and
+    # the columns are fitted then. Closing S1 gives 9 V / 2 kΩ = −4.50 mA through the cell
+    # (Ohm's law; negative: the cell delivers) and P = −9 V × 4.5 mA = −40.5 mW.
+    s = Sketch()
+    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 9.0, "internal_resistance": 0.0}))
+    s.add_part(PlacedPart("switch", "S1", 0, 0, 0, False, flags={"closed": False}))
+    s.add_part(PlacedPart("resistor", "R1", 4, 0, 90, False, {"resistance": 1000.0}))
+    s.add_part(PlacedPart("resistor", "R2", 0, 4, 0, False, {"resistance": 1000.0}))
+    s.add_part(PlacedPart("ground", "GND1", 0, 4))
+    win = open_window(qtbot, tmp_path, s)
+    solved(qtbot, win)
+    model, view = win.readings_model, win.readings
+    assert shown(model, "B1", 1) == format_value(0.0, "A")
+    win.editor.set_flag("S1", "closed", True)
+    solved(qtbot, win)
+    assert shown(model, "B1", 1) == format_value(-9.0 / 2000.0, "A")
+    assert shown(model, "B1", 3) == format_value(-9.0 * 9.0 / 2000.0, "W")
+    fm = view.fontMetrics()
+    for name in model.names:
+        for column in (1, 2, 3):
+            text = shown(model, name, column)
+            room = view.columnWidth(column) - 4  # the item's text margins: 2 px a side (at least)
+            assert fm.horizontalAdvance(text) <= room, f"{name}'s {text!r} is cut short"

@@ -11,7 +11,7 @@ from __future__ import annotations
 import re
 
 from PySide6.QtCore import QAbstractTableModel, QElapsedTimer, QModelIndex, QPersistentModelIndex, Qt, QTimer, Signal
-from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QTableView
+from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QStyle, QTableView
 
 from ..sketch.model import Sketch
 from ..units import format_value
@@ -19,6 +19,7 @@ from ..units import format_value
 __all__ = ["ReadingsModel", "ReadingsView", "natural_key", "BRANCH", "EFFECT"]
 
 COLUMNS = ("Part", "Current", "Drop", "Power", "As", "Meter effect")  # "As": the branch current's name
+UNITS = ("A", "V", "W")  # of the value columns, 1 to 3
 BRANCH = 4  # the column naming the part's current by its branch (tag or automatic name)
 EFFECT = 5  # the column of the meters' effect
 
@@ -149,7 +150,7 @@ class ReadingsModel(QAbstractTableModel):
         r = self.rows.get(name)
         if r is None:
             return _NO_VALUES
-        return format_value(r[0], "A"), format_value(r[1], "V"), format_value(r[2], "W")
+        return tuple(format_value(v, unit) for v, unit in zip(r, UNITS))
 
     def text(self, row: int, column: int) -> str:
         """The text shown in a cell."""
@@ -258,6 +259,26 @@ class ReadingsView(QTableView):
         for r0, r1, c0, c1 in late:
             if r0 < rows:  # the rows may have gone since (a reset repainted everything)
                 super().dataChanged(model.index(r0, c0), model.index(min(r1, rows - 1), c1), [])
+
+    def sizeHintForColumn(self, column: int) -> int:  # noqa: N802 (Qt's name)
+        """What a column needs: a value column at least the widest text it can show.
+
+        The columns are fitted when the rows change, not with every new value; a table
+        first filled with "0 A" would otherwise cut "−4.50 mA" short later.
+        """
+        hint = super().sizeHintForColumn(column)
+        if 1 <= column <= len(UNITS):
+            hint = max(hint, self._widest_value(UNITS[column - 1]))
+        return hint
+
+    def _widest_value(self, unit: str) -> int:
+        """The width of the widest value text in ``unit`` (three figures, a sign and any prefix
+        from pico to tera), with the margins the item's style puts about a text."""
+        fm = self.fontMetrics()
+        widest = max(fm.horizontalAdvance(format_value(-m * 10.0 ** e, unit))
+                     for e in range(-12, 13, 3) for m in (8.88, 88.8, 888.0))
+        margin = self.style().pixelMetric(QStyle.PixelMetric.PM_FocusFrameHMargin, None, self) + 1
+        return widest + 2 * margin
 
     def _fit_columns(self) -> None:
         """Size the columns to what they hold (at most the first few hundred rows are measured)."""
