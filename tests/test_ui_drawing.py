@@ -237,6 +237,29 @@ def test_a_short_circuit_drawn_on_the_canvas_marks_the_shorted_cell(qtbot, win):
     assert items["R1"].current_mark.isVisible()
 
 
+def test_a_wire_bends_around_the_part_it_starts_from_rather_than_over_it(qtbot, win):
+    """Joining a cell's plus to a resistor up and to the right: the bend asked for (across
+    first) would run along the cell's body and short it, so the wire goes up first; the
+    band shown while drawing is the wire that lands."""
+    place(qtbot, win, Qt.Key.Key_B, 0, 0)               # ideal 9 V cell, plus (-2, 0), minus (2, 0)
+    place(qtbot, win, Qt.Key.Key_R, 4, -2)              # R1 from (2, -2) to (6, -2)
+    key(qtbot, win, Qt.Key.Key_W)
+    assert win.view.horizontal_first                    # the bend asked for: across, then up
+    click(qtbot, win, -2, 0)
+    qtbot.mouseMove(win.view.viewport(), at(win, 2, -2))
+    shown = [(round(p.x() / 20), round(p.y() / 20)) for p in win.view._rubber.points]
+    click(qtbot, win, 2, -2)
+    key(qtbot, win, Qt.Key.Key_Escape)
+    legs = [(w.x1, w.y1, w.x2, w.y2) for w in win.sketch.wires]
+    assert legs == [(-2, 0, -2, -2), (-2, -2, 2, -2)]
+    assert shown == [(-2, 0), (-2, -2), (2, -2)]
+    assert not win.scene.part_items["B1"].flagged
+    wire(qtbot, win, (6, -2), (2, 0))                   # R1's far end to the minus: not along R1
+    assert [(w.x1, w.y1, w.x2, w.y2) for w in win.sketch.wires[2:]] == [(6, -2, 6, 0), (6, 0, 2, 0)]
+    # Ohm's law: 9 V across 1 kΩ
+    assert abs(win.scene.part_items["R1"].current_mark.value) == pytest.approx(9.0 / 1000.0)
+
+
 def test_value_typed_in_place_accepts_iec_code_and_refuses_nonsense(qtbot, win):
     place(qtbot, win, Qt.Key.Key_R, 2, 0)
     vp = win.view.viewport()

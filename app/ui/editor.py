@@ -19,7 +19,7 @@ from ..sketch.model import PlacedPart, Sketch, Wire
 from ..units import format_value
 from .commands import SketchCommand
 from .edits import (Edit, add_parts_edit, change_edit, delete_edit, move_target, rotate_edit,
-                    route, wires_edit)
+                    route_clear, wires_edit)
 from .scene import SketchScene
 
 __all__ = ["Editor", "FRAGMENT_MIME"]
@@ -69,8 +69,9 @@ class Editor:
         return name
 
     def add_wire(self, a: GridPoint, b: GridPoint, horizontal_first: bool = True) -> int:
-        """Join ``a`` to ``b`` with one or two wires at right angles; returns how many were added."""
-        edit = wires_edit(self.sketch, route(a, b, horizontal_first))
+        """Join ``a`` to ``b`` with one or two wires at right angles, bent as asked unless the
+        other bend runs over fewer parts (``route_clear``); returns how many were added."""
+        edit = wires_edit(self.sketch, route_clear(self.sketch, a, b, horizontal_first))
         n = len(edit.wires_after) - len(edit.wires_before)
         self.push(edit, "Draw wire")
         return n

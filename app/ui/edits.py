@@ -22,7 +22,7 @@ from ..sketch.model import PlacedPart, Sketch, Wire, transform
 __all__ = [
     "Edit", "apply_edit", "revert_edit", "compose", "set_wires",
     "add_parts_edit", "delete_edit", "move_target", "change_edit", "wires_edit",
-    "route", "rotate_edit", "rotate_target", "follow_points", "connected_points",
+    "route", "route_clear", "rotate_edit", "rotate_target", "follow_points", "connected_points",
     "FollowedWires", "straighten",
 ]
 
@@ -407,6 +407,55 @@ def route(a: GridPoint, b: GridPoint, horizontal_first: bool = True) -> list[Wir
         return [Wire(a[0], a[1], b[0], b[1])]
     corner = (b[0], a[1]) if horizontal_first else (a[0], b[1])
     return [Wire(a[0], a[1], corner[0], corner[1]), Wire(corner[0], corner[1], b[0], b[1])]
+
+
+def route_clear(sketch: Sketch, a: GridPoint, b: GridPoint, horizontal_first: bool = True) -> list[Wire]:
+    """``route(a, b, horizontal_first)``, or the other bend when it runs over fewer parts.
+
+    A leg laid along a part's body joins that part's two terminals (it shorts the part),
+    and a leg through a terminal other than ``a`` or ``b`` joins that terminal: neither is
+    what a person drawing from ``a`` to ``b`` means. The bend asked for is kept when both
+    bends run over as many parts (a straight route has no other bend).
+    """
+    asked = route(a, b, horizontal_first)
+    if len(asked) < 2:
+        return asked
+    other = route(a, b, not horizontal_first)
+    # both bends lie in the box of a and b: only parts reaching into it can be in the way
+    x0, x1 = sorted((a[0], b[0]))
+    y0, y1 = sorted((a[1], b[1]))
+    near = []
+    for part in sketch.parts:
+        terms = part.terminal_points
+        (ax, ay), (bx, by) = terms[0], terms[-1]
+        if min(ax, bx) <= x1 and max(ax, bx) >= x0 and min(ay, by) <= y1 and max(ay, by) >= y0:
+            near.append(terms)
+    return other if _run_over(near, other, a, b) < _run_over(near, asked, a, b) else asked
+
+
+def _run_over(parts: list[tuple[GridPoint, ...]], legs: list[Wire], a: GridPoint, b: GridPoint) -> int:
+    """How many bodies of ``parts`` (their terminal points) ``legs`` run along, plus how many
+    terminals (not ``a`` or ``b``) they pass."""
+    points: set[GridPoint] = set()
+    runs = []  # (across, the line's other coordinate, low end, high end) per leg
+    for w in legs:
+        (x0, y0), (x1, y1) = sorted(w.ends)
+        if y0 == y1:
+            runs.append((True, y0, x0, x1))
+            points.update((x, y0) for x in range(x0, x1 + 1))
+        else:
+            runs.append((False, x0, y0, y1))
+            points.update((x0, y) for y in range(y0, y1 + 1))
+    points -= {a, b}
+    count = 0
+    for terms in parts:
+        count += sum(1 for t in terms if t in points)
+        if len(terms) == 2:
+            (x0, y0), (x1, y1) = sorted(terms)
+            body = (True, y0, x0, x1) if y0 == y1 else (False, x0, y0, y1) if x0 == x1 else None
+            count += body is not None and any(
+                r[0] == body[0] and r[1] == body[1] and max(r[2], body[2]) < min(r[3], body[3]) for r in runs)
+    return count
 
 
 def wires_edit(sketch: Sketch, wires: Iterable[Wire]) -> Edit:

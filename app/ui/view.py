@@ -17,7 +17,7 @@ from PySide6.QtWidgets import QGraphicsView
 from ..sketch.kinds import kind_spec
 from ..sketch.model import PlacedPart, transform
 from .editor import Editor
-from .edits import connected_points, route
+from .edits import connected_points, route_clear
 from .items import GridCursor, PartItem, RubberWire, WireItem, to_scene
 from .scene import SketchScene
 from .theme import GRID, current_theme
@@ -150,7 +150,7 @@ class CanvasView(QGraphicsView):
         if self._wire_start is None:
             self._rubber.set_points([])
             return
-        legs = route(self._wire_start, self.cursor_point, self.horizontal_first)
+        legs = route_clear(self.editor.sketch, self._wire_start, self.cursor_point, self.horizontal_first)
         pts = [to_scene(self._wire_start)] + [to_scene(w.ends[1]) for w in legs]
         self._rubber.set_points(pts)
 
