@@ -79,3 +79,40 @@ def test_refusals_take_the_schemes_fault_colour(qtbot, tmp_path):
                 assert label.palette().color(label.foregroundRole()) == theme.fault
     finally:
         win.set_scheme("system")
+
+
+def _contrast(a: QColor, b: QColor) -> float:
+    """WCAG 2.1 contrast ratio (its definitions of relative luminance and contrast ratio)."""
+    def luminance(c: QColor) -> float:
+        lin = [x / 12.92 if x <= 0.04045 else ((x + 0.055) / 1.055) ** 2.4 for x in (c.redF(), c.greenF(), c.blueF())]
+        return 0.2126 * lin[0] + 0.7152 * lin[1] + 0.0722 * lin[2]
+    hi, lo = sorted((luminance(a), luminance(b)), reverse=True)
+    return (hi + 0.05) / (lo + 0.05)
+
+
+def test_a_scheme_other_than_the_systems_recolours_the_panels_too_and_system_puts_them_back(qtbot, tmp_path):
+    app = QApplication.instance()
+    platform = QPalette(app.palette())
+    if platform.color(QPalette.ColorRole.Window).lightness() < 128:
+        pytest.skip("the test platform's own palette is dark")
+    win = open_window(qtbot, tmp_path, FIXTURE)
+    try:
+        win.set_scheme("light")  # the system's own scheme: its palette stays
+        assert app.palette() == platform
+        win.set_scheme("dark")
+        assert app.palette().color(QPalette.ColorRole.Window).lightness() < 128
+        qtbot.waitUntil(lambda: win.readings.palette().color(QPalette.ColorRole.Base).lightness() < 128)
+        pal = win.readings.palette()
+        assert current_theme() is DARK and paper_at_corner(win) == DARK.paper
+        assert pal.color(QPalette.ColorRole.Window).lightness() < 128
+        assert pal.color(QPalette.ColorRole.Base).lightness() < 128
+        # WCAG 2.1 success criterion 1.4.3: text at least 4.5:1 against what it is drawn on
+        R = QPalette.ColorRole
+        for text, ground in ((R.Text, R.Base), (R.Text, R.AlternateBase), (R.WindowText, R.Window),
+                             (R.ButtonText, R.Button), (R.HighlightedText, R.Highlight),
+                             (R.ToolTipText, R.ToolTipBase), (R.PlaceholderText, R.Base)):
+            assert _contrast(pal.color(text), pal.color(ground)) >= 4.5, (text, ground)
+        win.set_scheme("system")
+        assert app.palette() == platform and current_theme() is LIGHT
+    finally:
+        win.set_scheme("system")

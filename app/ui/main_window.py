@@ -29,7 +29,7 @@ from .shot import render_scene
 from .solve_worker import LiveSolver, Result
 from .status_line import StatusLine
 from .symbols import IEC, STYLED_KINDS, STYLES
-from .theme import DARK, LIGHT, REFUSAL, set_theme, style_refusal
+from .theme import DARK, LIGHT, REFUSAL, style_refusal, use_scheme
 from .view import SELECT, WIRE, CanvasView
 
 __all__ = ["MainWindow", "run", "FILE_FILTER"]
@@ -413,7 +413,7 @@ class MainWindow(QMainWindow):
             self.tool_actions[kind].setIcon(tool_icon(kind, style))
 
     def _apply_scheme(self, key: str) -> None:
-        set_theme({"light": LIGHT, "dark": DARK}.get(key))
+        use_scheme({"light": LIGHT, "dark": DARK}.get(key))
         for label in self.findChildren(QLabel, REFUSAL):
             style_refusal(label)
 

@@ -10,8 +10,8 @@ from dataclasses import dataclass
 
 from PySide6.QtGui import QColor, QFont, QGuiApplication, QPalette
 
-__all__ = ["Theme", "LIGHT", "DARK", "current_theme", "set_theme", "GRID", "label_font", "small_font",
-           "REFUSAL", "style_refusal"]
+__all__ = ["Theme", "LIGHT", "DARK", "current_theme", "set_theme", "use_scheme", "window_palette", "GRID",
+           "label_font", "small_font", "REFUSAL", "style_refusal"]
 
 GRID = 20.0  # scene units per grid step
 
@@ -91,6 +91,51 @@ def set_theme(theme: Theme | None) -> None:
     global _current, _auto
     _current = theme
     _auto = None
+
+
+# the window's own colours (panels, menus, tables) per scheme, for when the scheme chosen is
+# not the system's: (role, colour) for every colour group, then the disabled group's texts
+_WINDOW_COLOURS = {
+    "dark": {"Window": "#262b2e", "WindowText": "#d5dbde", "Base": "#1d2124", "AlternateBase": "#23282b",
+             "Text": "#d5dbde", "Button": "#30363a", "ButtonText": "#d5dbde", "BrightText": "#ffffff",
+             "Highlight": "#2f6690", "HighlightedText": "#ffffff", "ToolTipBase": "#2c3236",
+             "ToolTipText": "#d5dbde", "PlaceholderText": "#8d989d", "Link": "#7db4dc",
+             "Light": "#464d52", "Midlight": "#3a4146", "Mid": "#30363a", "Dark": "#16191b", "Shadow": "#0c0e0f"},
+    "light": {"Window": "#efede6", "WindowText": "#27343b", "Base": "#fbfaf6", "AlternateBase": "#f2f0e9",
+              "Text": "#27343b", "Button": "#e6e3da", "ButtonText": "#27343b", "BrightText": "#ffffff",
+              "Highlight": "#2f6f9c", "HighlightedText": "#ffffff", "ToolTipBase": "#fbfaf6",
+              "ToolTipText": "#27343b", "PlaceholderText": "#6b7478", "Link": "#2f6f9c",
+              "Light": "#ffffff", "Midlight": "#f4f2ec", "Mid": "#b9b5aa", "Dark": "#8f8b80", "Shadow": "#5a5750"},
+}
+_DISABLED = {"dark": "#6f7a7f", "light": "#9aa2a6"}
+
+
+def window_palette(theme: Theme) -> QPalette:
+    """A palette for the window's widgets in ``theme``'s scheme, used when the scheme chosen is
+    not the system's (a dark window asked for on a light desktop, say)."""
+    pal = QPalette()
+    for role, colour in _WINDOW_COLOURS[theme.name].items():
+        pal.setColor(getattr(QPalette.ColorRole, role), QColor(colour))
+    for role in ("WindowText", "Text", "ButtonText", "PlaceholderText"):
+        pal.setColor(QPalette.ColorGroup.Disabled, getattr(QPalette.ColorRole, role), QColor(_DISABLED[theme.name]))
+    return pal
+
+
+_own_palette = False  # whether the application's palette is a scheme's (``window_palette``), not the system's
+
+
+def use_scheme(theme: Theme | None) -> None:
+    """Draw in ``theme`` (None: the system's scheme), and give the window's widgets (panels,
+    menus, tables) its palette when it is not the system's scheme: a dark canvas asked for
+    on a light desktop gets dark panels beside it. The system's palette comes back otherwise."""
+    global _own_palette
+    if _own_palette:
+        _own_palette = False
+        QGuiApplication.setPalette(QPalette())  # an empty palette: the platform's again
+    if theme is not None and (theme is DARK) != _system_is_dark():
+        _own_palette = True
+        QGuiApplication.setPalette(window_palette(theme))
+    set_theme(theme)
 
 
 _FONTS: dict[int, QFont] = {}
