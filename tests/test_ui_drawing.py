@@ -145,6 +145,27 @@ def test_two_mesh_circuit_drawn_by_mouse_and_keys_is_annotated_with_solver_curre
     assert win.readings_model.text(win.readings_model.row_of("R1"), 1) == format_value(i_total, "A")
 
 
+def test_no_potential_tag_hides_a_part_label_or_value_drawn_after_it(qtbot, win):
+    """The tag at the junction of R1, R2 and R3 is hung before R3 is placed; R3's label then
+    lands where the tag hangs. Every label and value text stays in sight (the geometry of
+    each text is read from its item, the tag's box from the tag)."""
+    draw_two_meshes(qtbot, win)
+    scene = win.scene
+    texts = []
+    for item in scene.part_items.values():
+        if item.lines:
+            texts.append((item.part.name, item.mapRectToScene(item.label_rect)))
+        for mark in (item.current_mark, item.drop_mark):
+            if mark is not None and mark.isVisible():
+                texts.append((item.part.name, mark.text_rect.translated(item.pos())))
+    tags = [t for t in scene._tags if t.isVisible()]
+    assert len(tags) >= 3
+    for tag in tags:
+        box = tag.rect_at(tag._corner).translated(tag.pos())
+        hidden = [name for name, rect in texts if box.intersected(rect).width() * box.intersected(rect).height() > 1]
+        assert not hidden, f"the {tag.text} tag hides text of {hidden}"
+
+
 def test_undo_all_gives_the_empty_sketch_and_redo_all_the_same_document(qtbot, win):
     draw_two_meshes(qtbot, win)
     drag(win, (6, 0), (6, -2))  # move R3 up two steps: its wires stretch, one undo step

@@ -938,7 +938,10 @@ class _HungMark(_LayerPainted):
 class PotentialTag(_HungMark):
     """A small tag with a node's potential, hung from one of its grid points."""
 
-    CORNERS = ((-1, -1), (1, -1), (-1, 1), (1, 1))
+    NEAR, FAR = 6.0, 24.0  # how far the box's corner hangs from its point, across and down
+    # (across, down, reach) in order of preference: close by first, farther out when every
+    # close place hides something (a junction of three parts with their labels all round)
+    HANGS = tuple((sx, sy, reach) for reach in (NEAR, FAR) for sx, sy in ((-1, -1), (1, -1), (-1, 1), (1, 1)))
     GROUP = 2
     BORDER = 0.9  # the box's rim
 
@@ -948,7 +951,7 @@ class PotentialTag(_HungMark):
         self.at: tuple[int, int] | None = None  # the grid point it hangs from
         self._key: str | None = None  # ``_rounded`` of the value shown: all its text depends on
         self._rect = QRectF()
-        self._corner = (-1, -1)
+        self._corner = self.HANGS[0]
 
     def set_value(self, value: float) -> None:
         key = _rounded(value)
@@ -966,16 +969,18 @@ class PotentialTag(_HungMark):
         else:
             self.set_corner(self._corner)
 
-    def rect_at(self, corner: tuple[int, int]) -> QRectF:
-        """The tag's box when hung towards ``corner`` ((-1, -1) = up and left)."""
+    def rect_at(self, corner: tuple[int, int, float]) -> QRectF:
+        """The tag's box when hung towards ``corner`` (across, down, reach: (-1, -1, NEAR) = up
+        and left, close by)."""
         fm = _fm()
         w = _advance(self.text) + 8
         h = fm.height() + 2
-        x = -w - 6 if corner[0] < 0 else 6
-        y = -h - 6 if corner[1] < 0 else 6
+        reach = corner[2]
+        x = -w - reach if corner[0] < 0 else reach
+        y = -h - reach if corner[1] < 0 else reach
         return QRectF(x, y, w, h)
 
-    def set_corner(self, corner: tuple[int, int]) -> None:
+    def set_corner(self, corner: tuple[int, int, float]) -> None:
         rect = self.rect_at(corner)
         if rect != self._rect:
             self.prepareGeometryChange()

@@ -17,7 +17,7 @@ from PySide6.QtWidgets import QGraphicsScene, QStyleOptionGraphicsItem
 
 from ..sketch.model import Sketch
 from .annotations import CurrentMark, DropMark, FaultNote, LoopMark, PotentialTag, ReadingLayer
-from .items import TEXT_LOD, Box, JunctionLayer, LooseEnd, OnPaper, PartItem, WireItem, paint_on_paper, to_scene
+from .items import COVER_TEXT, TEXT_LOD, Box, JunctionLayer, LooseEnd, OnPaper, PartItem, WireItem, paint_on_paper, to_scene
 from .symbols import IEC
 from .theme import GRID
 
@@ -56,6 +56,7 @@ class SketchScene(QGraphicsScene):
         self.solved = False
         self.place_now_up_to: int | None = None  # see _place; the window sets it while editing
         self._waiting: list = []  # (place, mark, key) jobs put off by _place
+        self._new_parts: set[str] = set()  # parts new or changed since the last solution was laid on
         self._place_timer = QTimer(self)
         self._place_timer.setSingleShot(True)
         self._place_timer.setInterval(self.PLACE_AFTER_MS)
@@ -126,6 +127,7 @@ class SketchScene(QGraphicsScene):
             else:
                 item.set_part(part)
             shown[name] = part
+            self._new_parts.add(name)
             self._axis[name] = self._label_axis(item)
         self._orient_labels(parts, {p.name for p in changed})
 
@@ -355,6 +357,7 @@ class SketchScene(QGraphicsScene):
             if not item.active:
                 item.active = True
                 item.set_shown(tags_on)
+        moved += self._tags_hiding_new_parts(moved)
         jobs = []  # tags that stay put keep their corner, marks of unchanged windows their place
         if len(potentials) <= self.PLACE_TAGS_UP_TO:
             jobs += [(self._place_tag, item, item.key) for item in moved]
@@ -426,22 +429,55 @@ class SketchScene(QGraphicsScene):
         return not views or any(
             QStyleOptionGraphicsItem.levelOfDetailFromTransform(v.transform()) >= TEXT_LOD for v in views)
 
+    def _tags_hiding_new_parts(self, placing: list[PotentialTag]) -> list[PotentialTag]:
+        """The tags, other than ``placing``, that a part placed, moved or changed since the last
+        solution has put text under: a tag keeps its place from one edit to the next, so
+        without this a label laid out after the tag stays hidden under it."""
+        names, self._new_parts = self._new_parts, set()
+        items = [self.part_items[n] for n in names if n in self.part_items]
+        if not items:
+            return []
+        areas = []  # (left, top, right, bottom) of each such part with its marks
+        for item in items:
+            area = item.sceneBoundingRect()
+            for mark in (item.current_mark, item.drop_mark):
+                if mark is not None and mark.isVisible():
+                    area = area.united(mark.sceneBoundingRect())
+            areas.append(area.getCoords())
+        skip = {id(t) for t in placing}
+        out = []
+        for tag in self._tags:
+            if tag.active and id(tag) not in skip:
+                left, top, right, bottom = tag._scene_box
+                if any(left <= a[2] and a[0] <= right and top <= a[3] and a[1] <= bottom for a in areas) \
+                        and self._tag_cost(tag, tag._corner) >= COVER_TEXT:
+                    out.append(tag)
+        return out
+
+    FAR_TAG = 4 * COVER_TEXT  # what hanging a tag farther out costs: as much as hiding 4 px² of text
+
     def _place_tag(self, tag: PotentialTag) -> None:
-        """Hang a potential tag towards the corner where it covers the least text or symbol."""
-        best, best_cost = PotentialTag.CORNERS[0], None
-        for corner in PotentialTag.CORNERS:
-            rect = tag.rect_at(corner).translated(tag.pos())
-            x0, y0, x1, y1 = rect.left(), rect.top(), rect.right(), rect.bottom()
-            cost = 0.0
-            for left, top, right, bottom, _ in self._cover_boxes(rect, tag, wires=False):
-                w, h = min(right, x1) - max(left, x0), min(bottom, y1) - max(top, y0)
-                if w > 0 and h > 0:
-                    cost += w * h
+        """Hang a potential tag where it covers the least text or symbol: towards one of the
+        corners of its point, close by, or farther out when each close place hides a text."""
+        best, best_cost = PotentialTag.HANGS[0], None
+        for corner in PotentialTag.HANGS:
+            cost = self._tag_cost(tag, corner) + (0.0 if corner[2] == PotentialTag.NEAR else self.FAR_TAG)
             if best_cost is None or cost < best_cost:
                 best, best_cost = corner, cost
                 if cost == 0:
                     break
         tag.set_corner(best)
+
+    def _tag_cost(self, tag: PotentialTag, corner: tuple[int, int, float]) -> float:
+        """How much ``tag`` hung towards ``corner`` hides: the weighted area of what it covers."""
+        rect = tag.rect_at(corner).translated(tag.pos())
+        x0, y0, x1, y1 = rect.left(), rect.top(), rect.right(), rect.bottom()
+        cost = 0.0
+        for left, top, right, bottom, weight in self._cover_boxes(rect, tag, wires=False):
+            w, h = min(right, x1) - max(left, x0), min(bottom, y1) - max(top, y0)
+            if w > 0 and h > 0:
+                cost += w * h * weight
+        return cost
 
     REACH = 160.0  # farthest step (33) plus a mark's widest layout from its centre, with room
     LOOP_STEPS = (0.0, 6.0, -6.0, 12.0, -12.0, 18.0, -18.0, 24.0, -24.0, 30.0, -30.0)
