@@ -952,6 +952,7 @@ class PotentialTag(_HungMark):
         self._key: str | None = None  # ``_rounded`` of the value shown: all its text depends on
         self._rect = QRectF()
         self._corner = self.HANGS[0]
+        self.hides = 0.0  # the weighted area it covered when last hung (``SketchScene._place_tag``)
 
     def set_value(self, value: float) -> None:
         key = _rounded(value)

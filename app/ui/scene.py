@@ -431,26 +431,27 @@ class SketchScene(QGraphicsScene):
 
     def _tags_hiding_new_parts(self, placing: list[PotentialTag]) -> list[PotentialTag]:
         """The tags, other than ``placing``, that a part placed, moved or changed since the last
-        solution has put text under: a tag keeps its place from one edit to the next, so
-        without this a label laid out after the tag stays hidden under it."""
+        solution has put text under (more than the tag covered when it was hung: where every
+        place hides something, it is not hung again on each edit): a tag keeps its place from
+        one edit to the next, so without this a label laid out after the tag stays hidden under it."""
         names, self._new_parts = self._new_parts, set()
         items = [self.part_items[n] for n in names if n in self.part_items]
         if not items:
             return []
-        areas = []  # (left, top, right, bottom) of each such part with its marks
+        texts = []  # (left, top, right, bottom) of their labels and value texts
         for item in items:
-            area = item.sceneBoundingRect()
+            boxes = list(item.cover_boxes())
             for mark in (item.current_mark, item.drop_mark):
                 if mark is not None and mark.isVisible():
-                    area = area.united(mark.sceneBoundingRect())
-            areas.append(area.getCoords())
+                    boxes += mark.cover_boxes()
+            texts += [b[:4] for b in boxes if b[4] >= COVER_TEXT]
         skip = {id(t) for t in placing}
         out = []
         for tag in self._tags:
             if tag.active and id(tag) not in skip:
                 left, top, right, bottom = tag._scene_box
-                if any(left <= a[2] and a[0] <= right and top <= a[3] and a[1] <= bottom for a in areas) \
-                        and self._tag_cost(tag, tag._corner) >= COVER_TEXT:
+                if any(left < b[2] and b[0] < right and top < b[3] and b[1] < bottom for b in texts) \
+                        and self._tag_cost(tag, tag._corner) >= tag.hides + COVER_TEXT:
                     out.append(tag)
         return out
 
@@ -459,14 +460,16 @@ class SketchScene(QGraphicsScene):
     def _place_tag(self, tag: PotentialTag) -> None:
         """Hang a potential tag where it covers the least text or symbol: towards one of the
         corners of its point, close by, or farther out when each close place hides a text."""
-        best, best_cost = PotentialTag.HANGS[0], None
+        best, best_cost, hides = PotentialTag.HANGS[0], None, 0.0
         for corner in PotentialTag.HANGS:
-            cost = self._tag_cost(tag, corner) + (0.0 if corner[2] == PotentialTag.NEAR else self.FAR_TAG)
+            covered = self._tag_cost(tag, corner)
+            cost = covered + (0.0 if corner[2] == PotentialTag.NEAR else self.FAR_TAG)
             if best_cost is None or cost < best_cost:
-                best, best_cost = corner, cost
+                best, best_cost, hides = corner, cost, covered
                 if cost == 0:
                     break
         tag.set_corner(best)
+        tag.hides = hides
 
     def _tag_cost(self, tag: PotentialTag, corner: tuple[int, int, float]) -> float:
         """How much ``tag`` hung towards ``corner`` hides: the weighted area of what it covers."""
