@@ -92,3 +92,28 @@ def test_a_window_of_laptop_height_keeps_its_size_when_a_part_is_selected(qtbot,
     assert win.view.mapToScene(win.view.viewport().rect().center()) == before
     panel = win.part_dock.widget()
     assert panel is win.part_panel and panel.height() >= panel.minimumSizeHint().height()
+
+
+def test_selecting_a_part_of_any_kind_leaves_the_canvas_its_width_and_place(qtbot, tmp_path):
+    """The part panel's rows differ by kind (a cell's capacity, a cable's cross-section): the
+    side column must not widen for the longest of them, or the canvas narrows and the
+    drawing moves under the pointer between a press and a drag."""
+    from PySide6.QtWidgets import QApplication
+
+    from app.sketch.kinds import KINDS
+
+    s = Sketch()
+    names = []
+    for k, kind in enumerate(KINDS):
+        name = s.next_name(kind)
+        s.add_part(PlacedPart(kind, name, 6 * k, 0))
+        names.append(name)
+    win = open_window(qtbot, tmp_path, s, size=(1100, 700))
+    QApplication.processEvents()
+    vp = win.view.viewport()
+    width, before = vp.width(), win.view.mapToScene(vp.rect().center())
+    for name in names:
+        win.scene.select([name])
+        QApplication.processEvents()
+        assert vp.width() == width, f"selecting {name} narrowed the canvas"
+        assert win.view.mapToScene(vp.rect().center()) == before, f"selecting {name} moved the drawing"

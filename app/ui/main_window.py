@@ -10,7 +10,7 @@ from pathlib import Path
 from PySide6.QtCore import QEvent, QItemSelection, QItemSelectionModel, QSettings, Qt, QTimer, Signal
 from PySide6.QtGui import QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QUndoStack
 from PySide6.QtWidgets import (QApplication, QFileDialog, QLabel, QMainWindow,
-                               QMessageBox, QToolBar, QToolButton, QVBoxLayout, QWidget)
+                               QMessageBox, QSizePolicy, QToolBar, QToolButton, QVBoxLayout, QWidget)
 
 from ..sketch.fileio import SaveError, SketchFileError, load_sketch, save_sketch
 from ..sketch.kinds import KINDS
@@ -208,6 +208,10 @@ class MainWindow(QMainWindow):
         lay = QVBoxLayout(host)
         lay.setContentsMargins(4, 4, 4, 4)
         lay.addWidget(self.readings)
+        # the table (and the Equations tab beside it) takes the column's spare height; the part
+        # panel no more than its rows need, or it kept the height of the longest part shown
+        host.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Expanding)
+        self.part_panel.setSizePolicy(QSizePolicy.Policy.Preferred, QSizePolicy.Policy.Maximum)
         self.readings_dock = add_dock(self, "Readings", "readings", host, scroll=False)  # its table scrolls
         self.part_dock = add_dock(self, "Part", "part", self.part_panel, scroll=False)  # values in full
 

@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import re
 
-from PySide6.QtCore import QPoint, Qt, Signal
+from PySide6.QtCore import QPoint, QSize, Qt, Signal
 from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QFrame, QHBoxLayout, QLabel, QLineEdit,
                                QPushButton, QVBoxLayout, QWidget)
 
@@ -89,6 +89,13 @@ class PartPanel(QWidget):
 
     refused = Signal(str)
 
+    def sizeHint(self) -> QSize:  # noqa: N802 (Qt's name)
+        """No wider than the panel must be: the side column follows its docks' widths, and a
+        cell's long rows (its preset list, "Maximum current (0 = not given)") widened it and
+        narrowed the canvas, moving the drawing under the pointer. Where a row does not fit
+        beside its label, its field goes under it."""
+        return QSize(self.minimumSizeHint().width(), super().sizeHint().height())
+
     def __init__(self, parent=None) -> None:
         super().__init__(parent)
         self.editor: Editor | None = None
@@ -105,6 +112,7 @@ class PartPanel(QWidget):
         self.form_host = QWidget()
         self.form = QFormLayout(self.form_host)
         self.form.setContentsMargins(0, 4, 0, 0)
+        self.form.setRowWrapPolicy(QFormLayout.RowWrapPolicy.WrapLongRows)  # see ``sizeHint``
         outer.addWidget(self.form_host)
         self.derived = _note()
         outer.addWidget(self.derived)
