@@ -179,8 +179,8 @@ def _parser() -> argparse.ArgumentParser:
     c = sub.add_parser("check", help="check typed equations or answers; exit status 3 when one is wrong")
     c.add_argument("file", help="a .lwsk sketch (its current tags name the currents)")
     c.add_argument("--eq", action="append", default=[], metavar="TEXT",
-                   help='an equation such as "B1 - Ia*R1 - (Ia - Ib)*R2 = 0", or answers such as '
-                        '"Ia = 12.3m, V(n2) = 4.1"; may be given more than once; without it the '
+                   help='an equation such as "B1 - I1*R1 - I2*R2 = 0", or answers such as '
+                        '"I1 = 12.3m, V(n2) = 4.1"; may be given more than once; without it the '
                         "checks saved with the sketch are run")
     c.add_argument("--tolerance", type=_fraction, default=0.01, help="for answers: 0.01 or 1%% (default)")
     c.set_defaults(func=cmd_check)

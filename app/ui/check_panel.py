@@ -1,7 +1,7 @@
 """The Check panel: a person's own equations and answers held against the circuit.
 
-Type an equation (``B1 - Ia*R2 - (Ia - Ib)*R5 = 0``) or answers
-(``Ia = 12.3m, V(n2) = 4.1``) and press Check. The verdict says whether it
+Type an equation (``B1 - I1*R2 - I2*R5 = 0``) or answers
+(``I1 = 12.3m, V(n2) = 4.1``) and press Check. The verdict says whether it
 is valid, which loop or junction it matches, and each wrong, missing or
 extra term or wrong sign, with a caret under its place in the text. Each
 check is kept in the sketch (undoably) and re-evaluated whenever the
@@ -99,7 +99,7 @@ class CheckPanel(QWidget):
         self.last: CheckOutcome | None = None
 
         self.entry = QLineEdit()
-        self.entry.setPlaceholderText("B1 - Ia*R1 - (Ia - Ib)*R2 = 0   or   Ia = 12.3m, V(n2) = 4.1")
+        self.entry.setPlaceholderText("B1 - I1*R1 - I2*R2 = 0   or   I1 = 12.3m, V(n2) = 4.1")
         self.entry.setMaxLength(CHECK_MAX)
         self.entry.setClearButtonEnabled(True)
         self.entry.returnPressed.connect(self.check_typed)
