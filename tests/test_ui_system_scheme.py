@@ -31,12 +31,17 @@ def paper_at_corner(win) -> QColor:
     return win.view.viewport().grab().toImage().pixelColor(QPoint(2, 2))
 
 
-def test_a_system_palette_change_recolours_the_canvas(qtbot, tmp_path):
+def light_platform_window(qtbot, tmp_path):
+    """(the application, a copy of the platform's palette, a window on the fixture); skips on a dark platform."""
     app = QApplication.instance()
-    light = QPalette(app.palette())
-    if light.color(QPalette.ColorRole.Window).lightness() < 128:
+    platform = QPalette(app.palette())
+    if platform.color(QPalette.ColorRole.Window).lightness() < 128:
         pytest.skip("the test platform's own palette is dark")
-    win = open_window(qtbot, tmp_path, FIXTURE)
+    return app, platform, open_window(qtbot, tmp_path, FIXTURE)
+
+
+def test_a_system_palette_change_recolours_the_canvas(qtbot, tmp_path):
+    app, light, win = light_platform_window(qtbot, tmp_path)
     assert win._scheme == "system" and current_theme() is LIGHT
     assert paper_at_corner(win) == LIGHT.paper
     try:
@@ -91,11 +96,7 @@ def _contrast(a: QColor, b: QColor) -> float:
 
 
 def test_a_scheme_other_than_the_systems_recolours_the_panels_too_and_system_puts_them_back(qtbot, tmp_path):
-    app = QApplication.instance()
-    platform = QPalette(app.palette())
-    if platform.color(QPalette.ColorRole.Window).lightness() < 128:
-        pytest.skip("the test platform's own palette is dark")
-    win = open_window(qtbot, tmp_path, FIXTURE)
+    app, platform, win = light_platform_window(qtbot, tmp_path)
     try:
         win.set_scheme("light")  # the system's own scheme: its palette stays
         assert app.palette() == platform
