@@ -46,9 +46,13 @@ def _solve_file(path: str):
     """The solution of the sketch in ``path`` and its cautions (app/assess)."""
     from .assess import assess
     from .sketch.netlist import to_circuit
+    from .assess.return_path import explained
     sketch = _load(path)
     net = to_circuit(sketch)
-    sol = solve(net.circuit, ground=net.ground)
+    try:
+        sol = solve(net.circuit, ground=net.ground)
+    except CircuitError as exc:
+        raise CircuitError(*explained(exc, net.circuit, {p.name: p.kind for p in sketch.parts})) from None
     return sol, assess(sketch, net, sol)
 
 

@@ -18,6 +18,7 @@ from PySide6.QtCore import QObject, Signal
 from solver import CircuitError, Solution, solve
 
 from ..assess import Caution
+from ..assess.return_path import explained
 from ..sketch.model import Sketch
 from ..sketch.netlist import Netlist, to_circuit
 from .bench_results import assess_result, detached
@@ -168,11 +169,13 @@ def _from_netlist(generation: int, netlist: Netlist, sketch: Sketch | None = Non
     try:
         sol = solve(circuit, ground=netlist.ground)
     except CircuitError as e:
-        res.error = e.message
-        res.error_parts = tuple(p for p in e.parts if not p.startswith("~"))
-        named = set(e.parts)
+        kinds = {p.name: p.kind for p in sketch.parts} if sketch is not None else {}
+        message, parts = explained(e, circuit, kinds)
+        res.error = message
+        res.error_parts = tuple(p for p in parts if not p.startswith("~"))
+        named = set(parts)
         res.error_wires = tuple(i for i, pieces in netlist.wire_parts.items() if named.intersection(pieces))
-        res.summary = "Not solved: " + e.message
+        res.summary = "Not solved: " + message
         return res
     res.solution = sol
     # whole arrays at once: per-name lookups cost more than the solve on large sketches
