@@ -97,8 +97,8 @@ def solution_table(sol: Solution, title: str = "", cautions: Sequence[Caution] =
     balance = sol.power_balance
     tiny = abs(balance) <= 1e-9 * max(abs(sol.source_power), 1e-300)
     shown = "0 W to rounding" if tiny else format_value(balance, "W")
-    out += ["", f"Sources deliver {format_value(sol.source_power, 'W')}; "
-                f"sum of absorbed power {shown} (Tellegen's theorem)."]
+    out += ["", f"Sources deliver {format_value(sol.source_power, 'W')}; every part's absorbed power, "
+                f"a delivering source's counted negative, sums to {shown} (Tellegen's theorem)."]
     for n in sol.notes:
         out.append(f"Note ({n.kind}): {n.message}")
     out += _caution_lines(cautions)
