@@ -201,3 +201,27 @@ def test_preferred_values_for_a_resistor_and_using_one(qtbot, tmp_path):
     assert win.sketch.part("R1").value("resistance") == 5100.0
     assert win.stack.count() == depth + 1
     dialog.close()
+
+
+def test_badges_of_parts_side_by_side_do_not_cover_each_other(qtbot, tmp_path):
+    """A 120 V, 0.2 Ω bank through F1 (5 A), then W1 (10 m of 0.5 mm² pair) butted to it, into
+    R1 (10 Ω, 100 W). By hand: W1 is 0.0172 Ω·mm²/m × 20 m / 0.5 mm² = 0.688 Ω (handbook
+    resistivity of copper at 20 °C), so I = 120 / (0.2 + 0.688 + 10) = 11.0 A: F1 is over its
+    rating and W1 drops 7.6 V (6.5 %, above 3 %). Their badges hang under the two bodies side
+    by side; each must stay clear of the other's."""
+    s = Sketch()
+    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 120.0, "internal_resistance": 0.2}))
+    s.add_part(PlacedPart("fuse", "F1", 0, 0, 0, False, {"rating": 5.0}))
+    s.add_part(PlacedPart("cable", "W1", 4, 0, 0, False, {"length": 10.0, "cross_section": 0.5}))
+    s.add_part(PlacedPart("resistor", "R1", 8, 0, 90, False, {"resistance": 10.0, "power_rating": 100.0}))
+    s.add_wire(Wire(0, 4, 8, 4))
+    s.add_part(PlacedPart("ground", "GND1", 0, 4))
+    win = open_bench_window(qtbot, tmp_path, s)
+    qtbot.waitUntil(lambda: win.bench.marks.badge("W1") is not None and win.bench.marks.badge("F1") is not None)
+    assert abs(win.readings_model.rows["F1"][0]) == pytest.approx(120.0 / (0.2 + 0.0172 * 20 / 0.5 + 10.0), rel=2e-3)
+    badges = [b for b in win.scene.items() if isinstance(b, Badge) and b.isVisible()]
+    assert len(badges) >= 3
+    rects = [b.mapRectToScene(b.rect) for b in badges]
+    for i, a in enumerate(rects):
+        for b in rects[i + 1:]:
+            assert not a.intersects(b), (a, b)

@@ -334,11 +334,56 @@ class BenchMarks:
                 continue
             shape, word = badge_for(c)  # type: ignore[misc]
             face = self._faces.get(name)
-            badge.offset = face.size()[1] + 2 if name in readings and face is not None else 0.0
+            offset = face.size()[1] + 2 if name in readings and face is not None else 0.0
             badge.set_badge(shape, word, c.severity, c.message)
+            if badge.offset != offset:
+                badge.offset = offset
+                badge.relayout()
         for name in [n for n in self._badges if n not in best]:
             self._hide(self._badges, name)
+        self._spread()
         self._show_points(hazards)
+
+    STEPS_OUT = 3  # how many badge heights a badge may move out to clear another mark
+
+    def _spread(self) -> None:
+        """Hang each badge where, from its own place out to ``STEPS_OUT`` badge heights further
+        from its part, it covers least of the badges hung before it and of other parts' texts
+        (the nearest of equal places): parts side by side in trouble otherwise hang their
+        badges over each other's, and over the labels beside them."""
+        settled: list[QRectF] = []
+        badges = sorted(self._badges.values(), key=lambda b: (b.sceneBoundingRect().top(), b.sceneBoundingRect().left()))
+        for badge in badges:
+            base, step = badge.offset, badge.size()[1] + 2
+            costs = []
+            for k in range(self.STEPS_OUT + 1):
+                badge.offset = base + k * step
+                badge.relayout()
+                cost = self._covered(badge, settled)
+                costs.append(cost)
+                if cost == 0:
+                    break
+            best = min(range(len(costs)), key=lambda k: (costs[k], k))
+            if badge.offset != base + best * step:
+                badge.offset = base + best * step
+                badge.relayout()
+            settled.append(badge.mapRectToScene(badge.rect))
+
+    def _covered(self, badge: "Badge", settled: list[QRectF]) -> float:
+        """How much of the badges in ``settled`` and of other parts' texts ``badge`` covers (area)."""
+        r = badge.mapRectToScene(badge.rect)
+
+        def area(left: float, top: float, right: float, bottom: float) -> float:
+            return max(0.0, min(right, r.right()) - max(left, r.left())) * max(0.0, min(bottom, r.bottom()) - max(top, r.top()))
+
+        cost = sum(area(*o.getCoords()) for o in settled)
+        for item in self.scene.items(r):
+            if item is badge or item is badge.owner or item.parentItem() is badge.owner or isinstance(item, Badge):
+                continue
+            boxes = getattr(item, "cover_boxes", None)
+            if boxes is not None and item.isVisible():
+                cost += sum(area(*b[:4]) for b in boxes() if b[4] >= COVER_TEXT)
+        return cost
 
     @staticmethod
     def _hide(pool: dict, name: str) -> None:
