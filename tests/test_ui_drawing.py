@@ -281,6 +281,26 @@ def test_a_wire_bends_around_the_part_it_starts_from_rather_than_over_it(qtbot, 
     assert abs(win.scene.part_items["R1"].current_mark.value) == pytest.approx(9.0 / 1000.0)
 
 
+def test_the_fault_frame_strikes_through_none_of_the_flagged_parts_label(qtbot, win):
+    """A current source drawn level on its own has no return path and is flagged; its frame
+    goes round the symbol and the label above it, so no fault-coloured pixel lies on the label."""
+    import numpy as np
+
+    from app.ui.theme import current_theme
+    from ui_support import canvas_pixels
+
+    place(qtbot, win, Qt.Key.Key_I, 2, 0)               # I1 from (0, 0) to (4, 0), alone
+    item = win.scene.part_items["I1"]
+    qtbot.waitUntil(lambda: item.flagged)
+    win.view.viewport().repaint()
+    px = canvas_pixels(win)
+    box = win.view.mapFromScene(item.mapRectToScene(item.label_rect)).boundingRect()
+    patch = px[box.top():box.bottom() + 1, box.left():box.right() + 1, :3]
+    fault = current_theme().fault
+    near = np.abs(patch - np.array([fault.blue(), fault.green(), fault.red()])).sum(axis=2) < 90
+    assert patch.size and not near.any(), f"{int(near.sum())} fault-coloured pixels on I1's label"
+
+
 def test_value_typed_in_place_accepts_iec_code_and_refuses_nonsense(qtbot, win):
     place(qtbot, win, Qt.Key.Key_R, 2, 0)
     vp = win.view.viewport()

@@ -264,7 +264,8 @@ class PartItem(OnPaper):
         self.setToolTip(f"{p.name}: {p.label}" if p.label else p.name)
         self.label_rect = self._label_rect()
         rect = self.outline.united(self.label_rect) if self.lines else QRectF(self.outline)
-        self._bounds = rect.adjusted(-6, -6, 6, 6)
+        pad = 14 if self.flagged else 6  # room for the fault frame's warning sign
+        self._bounds = rect.adjusted(-pad, -pad, pad, pad)
 
     def _label_rect(self) -> QRectF:
         if not self.lines:
@@ -312,12 +313,13 @@ class PartItem(OnPaper):
             painter.setPen(pen)
             painter.setBrush(Qt.BrushStyle.NoBrush)
             painter.drawRoundedRect(self.outline.adjusted(-3, -3, 3, 3), 5, 5)
-        if self.flagged:
+        if self.flagged:  # a frame round the symbol and its label, so it strikes through no text
+            frame = (self.outline.united(self.label_rect) if self.lines else self.outline).adjusted(-5, -5, 5, 5)
             pen = QPen(th.fault, 2.2, Qt.PenStyle.DashLine)
             painter.setPen(pen)
             painter.setBrush(Qt.BrushStyle.NoBrush)
-            painter.drawRoundedRect(self.outline.adjusted(-5, -5, 5, 5), 6, 6)
-            _paint_warning_sign(painter, self.outline.topLeft() + QPointF(-4, -4), th.fault)
+            painter.drawRoundedRect(frame, 6, 6)
+            _paint_warning_sign(painter, frame.topLeft() + QPointF(0, 6), th.fault)
         painter.save()
         painter.setTransform(self.symbol_transform, True)
         painter.setPen(ink_pen(colour))
