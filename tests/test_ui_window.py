@@ -117,3 +117,23 @@ def test_selecting_a_part_of_any_kind_leaves_the_canvas_its_width_and_place(qtbo
         QApplication.processEvents()
         assert vp.width() == width, f"selecting {name} narrowed the canvas"
         assert win.view.mapToScene(vp.rect().center()) == before, f"selecting {name} moved the drawing"
+
+
+def test_the_help_lists_every_shortcut_of_the_menus_and_the_canvas_keys(qtbot, win):
+    from PySide6.QtGui import QKeySequence
+
+    from app.ui.help_dialog import CANVAS_KEYS, KeysDialog, key_rows
+
+    titles = [a.text().replace("&", "") for a in win.menuBar().actions()]
+    assert titles[-1] == "Help"
+    rows = dict(key_rows(win))
+    undo = win.act_undo.shortcut().toString(QKeySequence.SequenceFormat.NativeText)
+    assert any(undo in keys and what == "Undo" for keys, what in rows["Edit"])
+    assert ("W", "Wire") in rows["Draw"]
+    assert rows["On the canvas"] == CANVAS_KEYS
+    shortcuts = {a.text().replace("&", "") for m in win.menuBar().actions() if m.menu()
+                 for a in m.menu().actions() if a.shortcuts()}
+    listed = {what for section in rows.values() for _, what in section}
+    assert shortcuts <= listed
+    dialog = KeysDialog(win)
+    assert "Tab, Shift+Tab" in dialog.text.toPlainText()

@@ -20,6 +20,7 @@ from .editor import FRAGMENT_MIME, Editor
 from .bench_tools import BenchTools
 from .docks import add_dock
 from .hand_analysis import HandAnalysis
+from .help_dialog import KeysDialog, show_about
 from .icons import tool_icon
 from .properties import InlineValueEditor, PartPanel
 from .readings import ReadingsModel, ReadingsView
@@ -52,7 +53,8 @@ PALETTE = [  # (tool, label, key)
 ]
 
 
-_FALLBACK_KEYS = {QKeySequence.StandardKey.Quit: "Ctrl+Q"}  # where a platform defines none
+_FALLBACK_KEYS = {QKeySequence.StandardKey.Quit: "Ctrl+Q",  # where a platform defines none
+                  QKeySequence.StandardKey.HelpContents: "F1"}
 
 
 def _demo_dir() -> Path:
@@ -272,6 +274,10 @@ class MainWindow(QMainWindow):
         for a in self.hand.menu_actions():
             an.addSeparator() if a is None else an.addAction(a)
         self.bench.build_menu(mb)
+        h = mb.addMenu("&Help")
+        h.addAction(self._action("&Keys and Mouse", lambda: KeysDialog(self).exec(),
+                                 QKeySequence.StandardKey.HelpContents))
+        h.addAction(self._action("&About Loopwright", lambda: show_about(self)))
 
     # -- the document ------------------------------------------------------------------
     def set_document(self, sketch: Sketch, path: Path | None) -> None:
