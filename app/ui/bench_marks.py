@@ -9,6 +9,7 @@ Points beyond 60 V to ground get a triangle of their own.
 """
 from __future__ import annotations
 
+import math
 from collections.abc import Iterable
 
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
@@ -132,17 +133,20 @@ class _OwnedMark(QGraphicsItem):
         so the mark goes at the foot of that column.
         """
         self.prepareGeometryChange()
+        self._rect = self.rect_for(self.offset)
+        self.update()
+
+    def rect_for(self, offset: float) -> QRectF:
+        """The mark's box (in the owner's coordinates) ``offset`` further out from the body."""
         o = self.owner
         w, h = self.size()
         out, c = o.outline, o.centre
         if o.horizontal:
             away = -o.side
-            y = out.bottom() + self.GAP + self.offset if away > 0 else out.top() - self.GAP - h - self.offset
-            self._rect = QRectF(c.x() - w / 2, y, w, h)
-        else:
-            foot = o.line_rect(4, w)  # under the designator, value, current and drop lines
-            self._rect = QRectF(foot.left(), foot.top() + self.offset, w, h)
-        self.update()
+            y = out.bottom() + self.GAP + offset if away > 0 else out.top() - self.GAP - h - offset
+            return QRectF(c.x() - w / 2, y, w, h)
+        foot = o.line_rect(4, w)  # under the designator, value, current and drop lines
+        return QRectF(foot.left(), foot.top() + offset, w, h)
 
     def boundingRect(self) -> QRectF:
         return self._rect.adjusted(-2, -2, 2, 2)
@@ -164,6 +168,7 @@ class Badge(_OwnedMark):
         super().__init__(parent)
         self.shape_name = TRIANGLE
         self.severity = "info"
+        self._size: tuple | None = None  # ((text, severity), (width, height))
 
     def set_badge(self, shape: str, text: str, severity: str, tip: str) -> None:
         if (shape, text, severity) != (self.shape_name, self.text, self.severity):
@@ -178,8 +183,12 @@ class Badge(_OwnedMark):
         return font
 
     def size(self) -> tuple[float, float]:
-        fm = QFontMetricsF(self._font())
-        return fm.horizontalAdvance(self.text) + 21, max(fm.height(), 13.0) + 2
+        """Width and height of the badge for its text (measured once per text and severity)."""
+        key = (self.text, self.severity)
+        if self._size is None or self._size[0] != key:
+            fm = QFontMetricsF(self._font())
+            self._size = (key, (fm.horizontalAdvance(self.text) + 21, max(fm.height(), 13.0) + 2))
+        return self._size[1]
 
     def paint(self, painter: QPainter, option: QStyleOptionGraphicsItem, widget: QWidget | None = None) -> None:
         if not self.text or too_small(painter):
@@ -328,62 +337,81 @@ class BenchMarks:
             face.set_reading(display_reading(c.figures["reading"], unit), c.message)
         for name in [n for n in self._faces if n not in readings]:
             self._hide(self._faces, name)
+        bases: dict[Badge, float] = {}  # each badge's own place: past its part's meter display, if any
         for name, c in best.items():
             badge = self._mark(self._badges, Badge, name)
             if badge is None:
                 continue
             shape, word = badge_for(c)  # type: ignore[misc]
             face = self._faces.get(name)
-            offset = face.size()[1] + 2 if name in readings and face is not None else 0.0
+            bases[badge] = face.size()[1] + 2 if name in readings and face is not None else 0.0
             badge.set_badge(shape, word, c.severity, c.message)
-            if badge.offset != offset:
-                badge.offset = offset
-                badge.relayout()
         for name in [n for n in self._badges if n not in best]:
             self._hide(self._badges, name)
-        self._spread()
+        self._spread(bases)
         self._show_points(hazards)
 
-    STEPS_OUT = 3  # how many badge heights a badge may move out to clear another mark
+    STEPS_OUT = 3  # how many badge heights a badge may move out to clear another badge
+    SPREAD_UP_TO = 40  # more badges keep their own places (the Cautions list has them all): 1 ms at most
+    CELL = 128.0  # hung badges are filed by cells of this size
 
-    def _spread(self) -> None:
-        """Hang each badge where, from its own place out to ``STEPS_OUT`` badge heights further
-        from its part, it covers least of the badges hung before it and of other parts' texts
-        (the nearest of equal places): parts side by side in trouble otherwise hang their
-        badges over each other's, and over the labels beside them."""
-        settled: list[QRectF] = []
-        badges = sorted(self._badges.values(), key=lambda b: (b.sceneBoundingRect().top(), b.sceneBoundingRect().left()))
-        for badge in badges:
-            base, step = badge.offset, badge.size()[1] + 2
-            costs = []
+    def _spread(self, bases: dict["Badge", float]) -> None:
+        """Hang each badge where, from its own place (``bases``) out to ``STEPS_OUT`` badge
+        heights further from its part, it covers least of the badges hung before it (the
+        nearest of equal places): parts side by side in trouble otherwise hang their badges
+        over each other's. The places are worked out as boxes; a badge is laid out again only
+        when it moves."""
+        if not bases or len(bases) > self.SPREAD_UP_TO:
+            for badge, base in bases.items():
+                self._hang(badge, base)
+            return
+        hung: dict[tuple[int, int], list] = {}
+
+        def at(badge: Badge, offset: float) -> tuple[float, float, float, float]:
+            return badge.rect_for(offset).translated(badge.owner.pos()).getCoords()
+
+        for badge in sorted(bases, key=lambda b: at(b, bases[b])[1::-1]):
+            base, step = bases[badge], badge.size()[1] + 2
+            best = None
             for k in range(self.STEPS_OUT + 1):
-                badge.offset = base + k * step
-                badge.relayout()
-                cost = self._covered(badge, settled)
-                costs.append(cost)
+                box = at(badge, base + k * step)
+                cost = self._covered(box, hung)
+                if best is None or cost < best[0]:
+                    best = (cost, base + k * step, box)
                 if cost == 0:
                     break
-            best = min(range(len(costs)), key=lambda k: (costs[k], k))
-            if badge.offset != base + best * step:
-                badge.offset = base + best * step
-                badge.relayout()
-            settled.append(badge.mapRectToScene(badge.rect))
+            self._hang(badge, best[1])
+            self._file(hung, best[2])
 
-    def _covered(self, badge: "Badge", settled: list[QRectF]) -> float:
-        """How much of the badges in ``settled`` and of other parts' texts ``badge`` covers (area)."""
-        r = badge.mapRectToScene(badge.rect)
+    @staticmethod
+    def _hang(badge: "Badge", offset: float) -> None:
+        if badge.offset != offset:
+            badge.offset = offset
+            badge.relayout()
 
-        def area(left: float, top: float, right: float, bottom: float) -> float:
-            return max(0.0, min(right, r.right()) - max(left, r.left())) * max(0.0, min(bottom, r.bottom()) - max(top, r.top()))
+    def _file(self, cells: dict, box: tuple[float, float, float, float]) -> None:
+        """File ``box`` (left, top, right, bottom) in every cell it meets."""
+        c = self.CELL
+        for cx in range(math.floor(box[0] / c), math.floor(box[2] / c) + 1):
+            for cy in range(math.floor(box[1] / c), math.floor(box[3] / c) + 1):
+                cells.setdefault((cx, cy), []).append(box)
 
-        cost = sum(area(*o.getCoords()) for o in settled)
-        for item in self.scene.items(r):
-            if item is badge or item is badge.owner or item.parentItem() is badge.owner or isinstance(item, Badge):
-                continue
-            boxes = getattr(item, "cover_boxes", None)
-            if boxes is not None and item.isVisible():
-                cost += sum(area(*b[:4]) for b in boxes() if b[4] >= COVER_TEXT)
-        return cost
+    def _covered(self, box: tuple[float, float, float, float], cells: dict) -> float:
+        """The area of ``box`` that the boxes filed in ``cells`` cover."""
+        left, top, right, bottom = box
+        c = self.CELL
+        seen, total = set(), 0.0
+        for cx in range(math.floor(left / c), math.floor(right / c) + 1):
+            for cy in range(math.floor(top / c), math.floor(bottom / c) + 1):
+                for other in cells.get((cx, cy), ()):
+                    if id(other) in seen:
+                        continue
+                    seen.add(id(other))
+                    w = min(right, other[2]) - max(left, other[0])
+                    h = min(bottom, other[3]) - max(top, other[1])
+                    if w > 0 and h > 0:
+                        total += w * h
+        return total
 
     @staticmethod
     def _hide(pool: dict, name: str) -> None:
