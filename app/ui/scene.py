@@ -446,14 +446,18 @@ class SketchScene(QGraphicsScene):
                     boxes += mark.cover_boxes()
             texts += [b[:4] for b in boxes if b[4] >= COVER_TEXT]
         skip = {id(t) for t in placing}
-        out = []
-        for tag in self._tags:
-            if tag.active and id(tag) not in skip:
-                left, top, right, bottom = tag._scene_box
-                if any(left < b[2] and b[0] < right and top < b[3] and b[1] < bottom for b in texts) \
-                        and self._tag_cost(tag, tag._corner) >= tag.hides + COVER_TEXT:
-                    out.append(tag)
-        return out
+        tags = [t for t in self._tags if t.active and id(t) not in skip]
+        if not tags or not texts:
+            return []
+        # every tag's box against every text box at once (a paste of many parts meets many tags)
+        boxes, x = np.array([t._scene_box for t in tags]), np.array(texts)
+        meets = np.zeros(len(tags), bool)
+        for k in range(0, len(tags), 256):
+            b = boxes[k:k + 256, None, :]
+            meets[k:k + 256] = ((b[..., 0] < x[:, 2]) & (x[:, 0] < b[..., 2])
+                                & (b[..., 1] < x[:, 3]) & (x[:, 1] < b[..., 3])).any(axis=1)
+        return [t for t, m in zip(tags, meets.tolist())
+                if m and self._tag_cost(t, t._corner) >= t.hides + COVER_TEXT]
 
     FAR_TAG = 4 * COVER_TEXT  # what hanging a tag farther out costs: as much as hiding 4 px² of text
 
