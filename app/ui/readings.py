@@ -10,8 +10,9 @@ from __future__ import annotations
 
 import re
 
-from PySide6.QtCore import QAbstractTableModel, QElapsedTimer, QModelIndex, QPersistentModelIndex, Qt, QTimer, Signal
-from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QStyle, QTableView
+from PySide6.QtCore import (QAbstractTableModel, QElapsedTimer, QModelIndex, QPersistentModelIndex, QSize, Qt,
+                            QTimer, Signal)
+from PySide6.QtWidgets import QAbstractItemView, QHeaderView, QStyle, QStyleOptionViewItem, QTableView
 
 from ..sketch.model import Sketch
 from ..units import format_value
@@ -272,13 +273,17 @@ class ReadingsView(QTableView):
         return hint
 
     def _widest_value(self, unit: str) -> int:
-        """The width of the widest value text in ``unit`` (three figures, a sign and any prefix
-        from pico to tera), with the margins the item's style puts about a text."""
-        fm = self.fontMetrics()
-        widest = max(fm.horizontalAdvance(format_value(-m * 10.0 ** e, unit))
-                     for e in range(-12, 13, 3) for m in (8.88, 88.8, 888.0))
-        margin = self.style().pixelMetric(QStyle.PixelMetric.PM_FocusFrameHMargin, None, self) + 1
-        return widest + 2 * margin
+        """The width a cell needs for the widest value text in ``unit`` (three figures, a sign
+        and any prefix from pico to tera), as the item's style sizes a cell (its margins too)."""
+        opt = QStyleOptionViewItem()
+        self.initViewItemOption(opt)
+        opt.features |= QStyleOptionViewItem.ViewItemFeature.HasDisplay
+        widest = 0
+        for text in {format_value(-m * 10.0 ** e, unit) for e in range(-12, 13, 3) for m in (8.88, 88.8, 888.0)}:
+            opt.text = text
+            size = self.style().sizeFromContents(QStyle.ContentsType.CT_ItemViewItem, opt, QSize(), self)
+            widest = max(widest, size.width())
+        return widest
 
     def _fit_columns(self) -> None:
         """Size the columns to what they hold (at most the first few hundred rows are measured)."""
