@@ -137,3 +137,34 @@ def test_the_help_lists_every_shortcut_of_the_menus_and_the_canvas_keys(qtbot, w
     assert shortcuts <= listed
     dialog = KeysDialog(win)
     assert "Tab, Shift+Tab" in dialog.text.toPlainText()
+
+
+def test_a_sketch_file_dropped_on_the_canvas_opens_and_other_drops_are_refused(qtbot, win, tmp_path):
+    from PySide6.QtCore import QMimeData, QPoint, QUrl
+    from PySide6.QtGui import QDragEnterEvent, QDropEvent
+    from PySide6.QtWidgets import QApplication
+
+    other = Sketch()
+    other.add_part(PlacedPart("resistor", "R7", 0, 0, 0, False, {"resistance": 47.0}))
+    path = tmp_path / "dropped.lwsk"
+    save_sketch(other, path)
+    vp = win.view.viewport()
+    at = QPoint(vp.width() // 2, vp.height() // 2)
+
+    def drag(urls: list[QUrl]) -> tuple[bool, bool]:
+        mime = QMimeData()
+        mime.setUrls(urls)
+        enter = QDragEnterEvent(at, Qt.DropAction.CopyAction, mime, Qt.MouseButton.LeftButton,
+                                Qt.KeyboardModifier.NoModifier)
+        QApplication.sendEvent(vp, enter)
+        drop = QDropEvent(QPointF(at), Qt.DropAction.CopyAction, mime, Qt.MouseButton.LeftButton,
+                          Qt.KeyboardModifier.NoModifier)
+        QApplication.sendEvent(vp, drop)
+        return enter.isAccepted(), drop.isAccepted()
+
+    text = tmp_path / "notes.txt"
+    text.write_text("not a sketch")
+    assert drag([QUrl.fromLocalFile(str(text))]) == (False, False)
+    assert [p.name for p in win.sketch.parts] == [p.name for p in one_loop().parts]
+    assert drag([QUrl.fromLocalFile(str(path))]) == (True, True)
+    assert [p.name for p in win.sketch.parts] == ["R7"] and win.path == path.resolve()

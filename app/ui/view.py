@@ -10,8 +10,9 @@ from __future__ import annotations
 
 import math
 
-from PySide6.QtCore import QPoint, QPointF, QRectF, Qt, Signal
-from PySide6.QtGui import QKeyEvent, QMouseEvent, QPainter, QPaintEvent, QPen, QPixmapCache, QPolygonF, QRegion, QWheelEvent
+from PySide6.QtCore import QMimeData, QPoint, QPointF, QRectF, Qt, Signal
+from PySide6.QtGui import (QDragEnterEvent, QDragMoveEvent, QDropEvent, QKeyEvent, QMouseEvent, QPainter,
+                           QPaintEvent, QPen, QPixmapCache, QPolygonF, QRegion, QWheelEvent)
 from PySide6.QtWidgets import QGraphicsView
 
 from ..sketch.kinds import kind_spec
@@ -22,11 +23,20 @@ from .items import GridCursor, PartItem, RubberWire, WireItem, to_scene
 from .scene import SketchScene
 from .theme import GRID, current_theme
 
-__all__ = ["CanvasView", "SELECT", "WIRE"]
+__all__ = ["CanvasView", "SELECT", "WIRE", "dropped_sketch"]
 
 SELECT = "select"
 WIRE = "wire"
 GridPoint = tuple[int, int]
+
+
+def dropped_sketch(mime: QMimeData) -> str | None:
+    """The path of the one local ``.lwsk`` file a drag carries, or None (anything else is not ours)."""
+    urls = mime.urls() if mime.hasUrls() else []
+    if len(urls) == 1 and urls[0].isLocalFile() and urls[0].toLocalFile().lower().endswith(".lwsk"):
+        return urls[0].toLocalFile()
+    return None
+
 # Room for the pictures parts and wires keep of themselves (items.OnPaper, in QPixmapCache):
 # at Qt's default of 10 MB a few hundred parts on screen push each other out, and a repaint
 # of the paper under a move paints its neighbours afresh.
@@ -40,6 +50,7 @@ class CanvasView(QGraphicsView):
     editRequested = Signal(str)  # a part's designator: open its value for editing
     pointerMoved = Signal(int, int)
     pressed = Signal()
+    fileDropped = Signal(str)  # a sketch file dropped on the canvas: the window opens it
 
     def __init__(self, parent=None) -> None:
         super().__init__(parent)
@@ -310,6 +321,27 @@ class CanvasView(QGraphicsView):
                 event.accept()
                 return
         super().mouseDoubleClickEvent(event)
+
+    # -- a sketch file dropped from the desktop ----------------------------------------------
+    # (no item on the canvas takes drops, so anything else dropped is refused here)
+    def dragEnterEvent(self, event: QDragEnterEvent) -> None:  # noqa: N802 (Qt's name)
+        self._take_sketch(event)
+
+    def dragMoveEvent(self, event: QDragMoveEvent) -> None:  # noqa: N802 (Qt's name)
+        self._take_sketch(event)
+
+    def dropEvent(self, event: QDropEvent) -> None:  # noqa: N802 (Qt's name)
+        if self._take_sketch(event):
+            self.fileDropped.emit(dropped_sketch(event.mimeData()))
+
+    @staticmethod
+    def _take_sketch(event: QDropEvent) -> bool:
+        """Accept the drag or drop if it carries one sketch file, else refuse it."""
+        if dropped_sketch(event.mimeData()) is None:
+            event.ignore()
+            return False
+        event.acceptProposedAction()
+        return True
 
     def wheelEvent(self, event: QWheelEvent) -> None:
         if event.modifiers() & Qt.KeyboardModifier.ControlModifier:
