@@ -260,3 +260,24 @@ def test_values_that_arrive_later_are_not_cut_short_by_columns_fitted_to_zeros(q
             # the width Qt's own delegate asks for to show the cell's text whole
             need = view.sizeHintForIndex(model.index(model.row_of(name), column)).width()
             assert view.columnWidth(column) >= need, f"{name}'s {shown(model, name, column)!r} is cut short"
+
+
+def test_the_row_of_a_part_selected_on_the_canvas_stays_in_sight_when_its_panel_grows(qtbot, tmp_path):
+    # twelve resistors and a cable run: selecting the cable (last row) shows its five value rows
+    # in the part panel, which takes height from the table after the table scrolled to the row
+    s = Sketch()
+    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 12.0}))
+    for k in range(12):
+        s.add_part(PlacedPart("resistor", f"R{k + 1}", 4 + 4 * k, 0, 90, False, {"resistance": 100.0}))
+        s.add_wire(Wire(4 * k, 0, 4 * k + 4, 0))
+        s.add_wire(Wire(4 * k, 4, 4 * k + 4, 4))
+    s.add_part(PlacedPart("cable", "W1", 48, 0, 0, False))
+    s.add_part(PlacedPart("ground", "GND1", 0, 4))
+    win = open_window(qtbot, tmp_path, s, size=(1024, 640))
+    solved(qtbot, win)
+    view, model = win.readings, win.readings_model
+    win.scene.select(["W1"])
+    qtbot.waitUntil(lambda: win.part_panel.isVisible())
+    qtbot.wait(50)
+    row = view.visualRect(model.index(model.row_of("W1"), 0))
+    assert view.viewport().rect().intersects(row), "W1's row is out of sight"

@@ -291,6 +291,14 @@ class ReadingsView(QTableView):
         self.resizeColumnsToContents()
         self._forget_hidden_rows()  # measuring asked for every row's texts
 
+    def resizeEvent(self, event) -> None:  # noqa: N802 (Qt's name)
+        """Keep the one selected row in sight: selecting a part on the canvas scrolls the table to
+        its row, and the part panel then growing for that part's values shortens the table."""
+        super().resizeEvent(event)
+        rows = self.selectionModel().selectedRows() if self.selectionModel() is not None else []
+        if len(rows) == 1:
+            self.scrollTo(rows[0])
+
     def _forget_hidden_rows(self) -> None:
         """Let the model drop the texts of rows out of sight, so a new solution compares only those on screen."""
         model = self.model()
