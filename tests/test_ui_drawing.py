@@ -269,6 +269,7 @@ def test_a_wire_bends_around_the_part_it_starts_from_rather_than_over_it(qtbot, 
     click(qtbot, win, -2, 0)
     qtbot.mouseMove(win.view.viewport(), at(win, 2, -2))
     shown = [(round(p.x() / 20), round(p.y() / 20)) for p in win.view._rubber.points]
+    assert "bends the other way" in win.hint_text.text()  # Space did not do it: say why
     click(qtbot, win, 2, -2)
     key(qtbot, win, Qt.Key.Key_Escape)
     legs = [(w.x1, w.y1, w.x2, w.y2) for w in win.sketch.wires]

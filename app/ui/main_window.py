@@ -117,6 +117,7 @@ class MainWindow(QMainWindow):
         self.view.modeChanged.connect(self._mode_changed)
         self.view.editRequested.connect(self.edit_value_inline)
         self.view.fileDropped.connect(self.open_path)  # asks first over unsaved work
+        self.view.notice.connect(self.hint)
         self.view.pressed.connect(self._dismiss_inline)
         self.view.pointerMoved.connect(lambda x, y: self.where.setText(f"x {x}  y {y}"))
         self.readings.selectionModel().selectionChanged.connect(self._table_selection_changed)

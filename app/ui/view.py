@@ -51,6 +51,7 @@ class CanvasView(QGraphicsView):
     pointerMoved = Signal(int, int)
     pressed = Signal()
     fileDropped = Signal(str)  # a sketch file dropped on the canvas: the window opens it
+    notice = Signal(str)  # a passing remark for the status line
 
     def __init__(self, parent=None) -> None:
         super().__init__(parent)
@@ -71,6 +72,7 @@ class CanvasView(QGraphicsView):
         self.horizontal_first = True
         self.cursor_point: GridPoint = (0, 0)
         self._wire_start: GridPoint | None = None
+        self._bent_other_way = False  # the band shown takes the other bend than the one asked for
         self._ghost: PartItem | None = None
         self._rubber: RubberWire | None = None
         self._cursor: GridCursor | None = None
@@ -164,6 +166,11 @@ class CanvasView(QGraphicsView):
         legs = route_clear(self.editor.sketch, self._wire_start, self.cursor_point, self.horizontal_first)
         pts = [to_scene(self._wire_start)] + [to_scene(w.ends[1]) for w in legs]
         self._rubber.set_points(pts)
+        # say so when the bend asked for (Space swaps it) gave way, once as it happens
+        bent_other_way = len(legs) == 2 and (legs[0].y1 == legs[0].y2) != self.horizontal_first
+        if bent_other_way and not self._bent_other_way:
+            self.notice.emit("The wire bends the other way: the bend asked for would run over a part.")
+        self._bent_other_way = bent_other_way
 
     def move_cursor_to(self, point: GridPoint) -> None:
         """Put the keyboard cursor (and the part or wire being drawn) on ``point``."""
