@@ -394,3 +394,24 @@ def test_a_value_typed_in_the_part_panel_is_named_in_the_undo_menu(qtbot, win):
     qtbot.keyClick(edit, Qt.Key.Key_Return)
     assert win.sketch.part(name).value("resistance") == 4700.0
     assert win.stack.undoText() == f"Set {name} resistance 4.70 kΩ"
+
+
+def test_a_middle_button_drag_pans_the_drawing_and_changes_nothing(qtbot, win):
+    draw_two_meshes(qtbot, win)
+    win.view.scale(6.0, 6.0)  # larger than the view both ways, so there is room to pan
+    QApplication.processEvents()
+    vp = win.view.viewport()
+    before = win.view.mapToScene(vp.rect().center())
+    document = (list(win.sketch.parts), list(win.sketch.wires))
+    a, b = QPoint(300, 300), QPoint(240, 270)
+    qtbot.mousePress(vp, Qt.MouseButton.MiddleButton, pos=a)
+    ev = QMouseEvent(QMouseEvent.Type.MouseMove, QPointF(b), QPointF(vp.mapToGlobal(b)), Qt.MouseButton.NoButton,
+                     Qt.MouseButton.MiddleButton, Qt.KeyboardModifier.NoModifier)
+    QApplication.sendEvent(vp, ev)
+    qtbot.mouseRelease(vp, Qt.MouseButton.MiddleButton, pos=b)
+    after = win.view.mapToScene(vp.rect().center())
+    # the drawing follows the pointer: 60 px left and 30 px up, at the view's pixels per scene unit
+    zoom = win.view.transform().m11()
+    assert (after - before).x() == pytest.approx(60 / zoom, abs=0.5)
+    assert (after - before).y() == pytest.approx(30 / zoom, abs=0.5)
+    assert (list(win.sketch.parts), list(win.sketch.wires)) == document

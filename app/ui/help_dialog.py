@@ -28,6 +28,7 @@ CANVAS_KEYS = [
     ("Double-click", "edit a part's value in place"),
     ("Right click", "while drawing: end the wire or put the tool down"),
     ("Ctrl+Wheel", "zoom in or out"),
+    ("Middle-button drag", "pan the drawing"),
     ("Drop a .lwsk file", "open it (asking first about unsaved work)"),
 ]
 

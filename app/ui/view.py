@@ -73,6 +73,7 @@ class CanvasView(QGraphicsView):
         self.cursor_point: GridPoint = (0, 0)
         self._wire_start: GridPoint | None = None
         self._bent_other_way = False  # the band shown takes the other bend than the one asked for
+        self._pan_from: QPointF | None = None  # where a middle-button drag (a pan) last was
         self._ghost: PartItem | None = None
         self._rubber: RubberWire | None = None
         self._cursor: GridCursor | None = None
@@ -252,6 +253,11 @@ class CanvasView(QGraphicsView):
         return None
 
     def mousePressEvent(self, event: QMouseEvent) -> None:
+        if event.button() == Qt.MouseButton.MiddleButton:  # pan, in any tool
+            self._pan_from = event.position()
+            self.viewport().setCursor(Qt.CursorShape.ClosedHandCursor)
+            event.accept()
+            return
         if self.editor is None:
             return super().mousePressEvent(event)
         self.pressed.emit()
@@ -280,6 +286,13 @@ class CanvasView(QGraphicsView):
         super().mousePressEvent(event)
 
     def mouseMoveEvent(self, event: QMouseEvent) -> None:
+        if self._pan_from is not None:
+            d = event.position() - self._pan_from
+            self._pan_from = event.position()
+            self.horizontalScrollBar().setValue(self.horizontalScrollBar().value() - round(d.x()))
+            self.verticalScrollBar().setValue(self.verticalScrollBar().value() - round(d.y()))
+            event.accept()
+            return
         if self.editor is None:
             return super().mouseMoveEvent(event)
         point = self.grid_at(event.position().toPoint())
@@ -306,6 +319,14 @@ class CanvasView(QGraphicsView):
         super().mouseMoveEvent(event)
 
     def mouseReleaseEvent(self, event: QMouseEvent) -> None:
+        if event.button() == Qt.MouseButton.MiddleButton and self._pan_from is not None:
+            self._pan_from = None
+            if self.mode == SELECT:
+                self.viewport().unsetCursor()
+            else:
+                self.viewport().setCursor(Qt.CursorShape.CrossCursor)
+            event.accept()
+            return
         if self._press is not None:
             if self._dragging and self.editor is not None:
                 self.editor.end_drag()
