@@ -168,3 +168,25 @@ def test_a_sketch_file_dropped_on_the_canvas_opens_and_other_drops_are_refused(q
     assert [p.name for p in win.sketch.parts] == [p.name for p in one_loop().parts]
     assert drag([QUrl.fromLocalFile(str(path))]) == (True, True)
     assert [p.name for p in win.sketch.parts] == ["R7"] and win.path == path.resolve()
+
+
+def test_no_potential_tag_hides_the_plus_or_minus_of_a_drop(qtbot, tmp_path):
+    """The + and − beside the terminals say which end is higher: on the bench fixture the
+    7.71 V tag at the R1-R2 junction hung over R1's −. The signs are read from what each drop
+    mark draws (its strokes), the tags' boxes from the tags."""
+    from app.ui.annotations import DropMark
+
+    fixture = Path(__file__).resolve().parent.parent / "demo_circuits" / "bench_supply_fixture.lwsk"
+    win = open_window(qtbot, tmp_path, fixture)
+    scene = win.scene
+    qtbot.waitUntil(lambda: scene.solved and any(t.isVisible() for t in scene._tags))
+    scene.settle_marks()
+    from PySide6.QtCore import QRectF
+
+    strokes = [QRectF(line.p1(), line.p2()).normalized().adjusted(-0.7, -0.7, 0.7, 0.7)  # the pen's width
+               for item in scene.part_items.values() for mark in (item.drop_mark,)
+               if isinstance(mark, DropMark) and mark.isVisible() for line in mark.figure()[2]]
+    assert len(strokes) >= 12  # three strokes a part (a + and a −), four resistors and the cell
+    for tag in (t for t in scene._tags if t.isVisible()):
+        box = tag.rect_at(tag._corner).translated(tag.pos())
+        assert not any(box.intersects(s) for s in strokes), f"the {tag.text} tag hides a + or −"

@@ -490,6 +490,22 @@ class DropMark(_PartMark):
         ends.translate(0, side) if o.horizontal else ends.translate(side, 0)
         return ends.adjusted(-5, -5, 5, 5)
 
+    def cover_boxes(self) -> list[Box]:
+        """The text, and the + and − beside the terminals: a tag over a sign hides which end is higher."""
+        boxes = super().cover_boxes()
+        if not self.value:
+            return boxes
+        o = self.owner
+        x0, y0, x1, y1 = o.ends
+        ux, uy = _unit_xy(x1 - x0, y1 - y0)
+        sx, sy = (0.0, 9.0 * o.side) if o.horizontal else (9.0 * o.side, 0.0)
+        pos = o.pos()
+        signs = [(x0 + 9 * ux + sx + pos.x(), y0 + 9 * uy + sy + pos.y()),
+                 (x1 - 9 * ux + sx + pos.x(), y1 - 9 * uy + sy + pos.y())]
+        # a sign weighs less than a text: half hidden it still reads, and a tag moved off it
+        # must not land on another tag's number instead
+        return boxes + [(x - 4.5, y - 4.5, x + 4.5, y + 4.5, COVER_TEXT / 4) for x, y in signs]
+
     def _draw(self, text: str) -> tuple:
         """(text's top left, the + and − lines, None) in scene coordinates."""
         o = self.owner
