@@ -23,7 +23,8 @@ from .items import COVER_TEXT, Z_MARK, Box, box_of, Z_NOTE, PartItem, _paint_war
 from .stamps import Stamp, Stamper, zooms_only
 from .theme import Theme, current_theme, small_font
 
-__all__ = ["CurrentMark", "DropMark", "ReadingLayer", "PotentialTag", "LoopMark", "FaultNote", "LAYERS"]
+__all__ = ["CurrentMark", "DropMark", "ReadingLayer", "PotentialTag", "LoopMark", "FaultNote", "LAYERS",
+           "marks_meeting"]
 
 LAYERS = {
     "currents": "Current arrows",
@@ -290,6 +291,7 @@ class _PartMark(_LayerPainted):
         self._fig: tuple | None = None  # what ``_lay_out`` worked out for the present text and layout
         self._drawing: tuple | None = None  # what ``_draw`` worked out, and for what (``_lay_out``)
         self._cover_of: QRectF | None = None  # the text box ``_cover`` was worked out from
+        self._cover_drawn = False  # whether ``_cover`` takes in what a value other than zero draws beside the text
         self._cover: list[Box] = []
         self._visible = False  # what was last asked of setVisible (asking Qt again costs a call)
         self.setVisible(False)
@@ -422,11 +424,18 @@ class _PartMark(_LayerPainted):
 
     def cover_boxes(self) -> list[Box]:
         """What marks placed nearby should not hide: the text (kept while it stays)."""
-        rect = self.text_rect
-        if self._cover_of is not rect:
-            self._cover_of = rect
+        rect, drawn = self.text_rect, bool(self.value)
+        if self._cover_of is not rect or self._cover_drawn != drawn:
+            self._cover_of, self._cover_drawn = rect, drawn
             self._cover = [box_of(rect.translated(self._owner.pos()), COVER_TEXT)]
+            if drawn:
+                self._cover += self._beside_covers()
         return self._cover
+
+    def _beside_covers(self) -> list[Box]:
+        """What else the mark draws for a value other than zero that marks placed nearby
+        should not hide (nothing here)."""
+        return []
 
     def drawn_rect(self) -> QRectF:
         """What the mark covers with its present text (its box also holds room for longer ones)."""
@@ -490,21 +499,21 @@ class DropMark(_PartMark):
         ends.translate(0, side) if o.horizontal else ends.translate(side, 0)
         return ends.adjusted(-5, -5, 5, 5)
 
-    def cover_boxes(self) -> list[Box]:
-        """The text, and the + and − beside the terminals: a tag over a sign hides which end is higher."""
-        boxes = super().cover_boxes()
-        if not self.value:
-            return boxes
+    def _sign_centres(self) -> tuple[tuple[float, float], tuple[float, float]]:
+        """Where the signs beside the first and the second terminal go, in scene coordinates:
+        9 px in from each terminal and 9 px out to the side."""
         o = self.owner
         x0, y0, x1, y1 = o.ends
         ux, uy = _unit_xy(x1 - x0, y1 - y0)
-        sx, sy = (0.0, 9.0 * o.side) if o.horizontal else (9.0 * o.side, 0.0)
         pos = o.pos()
-        signs = [(x0 + 9 * ux + sx + pos.x(), y0 + 9 * uy + sy + pos.y()),
-                 (x1 - 9 * ux + sx + pos.x(), y1 - 9 * uy + sy + pos.y())]
-        # a sign weighs less than a text: half hidden it still reads, and a tag moved off it
-        # must not land on another tag's number instead
-        return boxes + [(x - 4.5, y - 4.5, x + 4.5, y + 4.5, COVER_TEXT / 4) for x, y in signs]
+        sx, sy = (pos.x(), pos.y() + 9.0 * o.side) if o.horizontal else (pos.x() + 9.0 * o.side, pos.y())
+        return (x0 + 9 * ux + sx, y0 + 9 * uy + sy), (x1 - 9 * ux + sx, y1 - 9 * uy + sy)
+
+    def _beside_covers(self) -> list[Box]:
+        """The + and −: a tag over a sign hides which end is higher. A sign weighs less than a
+        text: half hidden it still reads, and a tag moved off it must not land on another
+        tag's number instead."""
+        return [(x - 4.5, y - 4.5, x + 4.5, y + 4.5, COVER_TEXT / 4) for x, y in self._sign_centres()]
 
     def _draw(self, text: str) -> tuple:
         """(text's top left, the + and − lines, None) in scene coordinates."""
@@ -513,17 +522,27 @@ class DropMark(_PartMark):
         at = self._text_at(self.text_rect.translated(pos), _align(o))
         if self.value == 0:
             return at, [], None
-        x0, y0, x1, y1 = o.ends
+        (px, py), (mx, my) = self._sign_centres()  # + beside the higher terminal, − beside the lower
         if self.value < 0:
-            x0, y0, x1, y1 = x1, y1, x0, y0
-        ux, uy = _unit_xy(x1 - x0, y1 - y0)   # from the higher terminal to the lower
-        sx, sy = (0.0, 9.0 * o.side) if o.horizontal else (9.0 * o.side, 0.0)
-        sx, sy = sx + pos.x(), sy + pos.y()
+            (px, py), (mx, my) = (mx, my), (px, py)
         r = 3.2
-        px, py = x0 + 9 * ux + sx, y0 + 9 * uy + sy
-        mx, my = x1 - 9 * ux + sx, y1 - 9 * uy + sy
         lines = [QLineF(px - r, py, px + r, py), QLineF(px, py - r, px, py + r), QLineF(mx - r, my, mx + r, my)]
         return at, lines, None
+
+
+def marks_meeting(marks: list, areas: np.ndarray) -> list:
+    """Those of ``marks`` whose scene boxes (``_scene_box``) meet any of ``areas`` (rows of left,
+    top, right, bottom), tested against every area at once."""
+    if not marks:
+        return marks
+    if len(areas) == 1:
+        left, top, right, bottom = areas[0].tolist()
+        return [m for m in marks if (b := m._scene_box)[2] >= left and b[0] <= right
+                and b[3] >= top and b[1] <= bottom]
+    b = np.array([m._scene_box for m in marks])[:, :, None]
+    a = areas.T[None]
+    hit = ((b[:, 2] >= a[:, 0]) & (b[:, 0] <= a[:, 2]) & (b[:, 3] >= a[:, 1]) & (b[:, 1] <= a[:, 3])).any(axis=1)
+    return [m for m, h in zip(marks, hit.tolist()) if h]
 
 
 class ReadingLayer(QGraphicsItem):
@@ -716,21 +735,7 @@ class ReadingLayer(QGraphicsItem):
         bottom): those in sight of the box around them, tested against every area at once
         (a move repaints hundreds)."""
         (left, top, _, _), (_, _, right, bottom) = areas.min(axis=0).tolist(), areas.max(axis=0).tolist()
-        return self._within(self._in_sight(group, left, top, right, bottom), areas)
-
-    @staticmethod
-    def _within(marks: list, areas: np.ndarray) -> list:
-        """Those of ``marks`` whose boxes meet any of ``areas`` (rows of left, top, right, bottom)."""
-        if not marks:
-            return marks
-        if len(areas) == 1:
-            left, top, right, bottom = areas[0].tolist()
-            return [m for m in marks if (b := m._scene_box)[2] >= left and b[0] <= right
-                    and b[3] >= top and b[1] <= bottom]
-        b = np.array([m._scene_box for m in marks])[:, :, None]
-        a = areas.T[None]
-        hit = ((b[:, 2] >= a[:, 0]) & (b[:, 0] <= a[:, 2]) & (b[:, 3] >= a[:, 1]) & (b[:, 1] <= a[:, 3])).any(axis=1)
-        return [m for m, h in zip(marks, hit.tolist()) if h]
+        return marks_meeting(self._in_sight(group, left, top, right, bottom), areas)
 
     def boundingRect(self) -> QRectF:
         return self._bounds
@@ -867,7 +872,7 @@ class ReadingLayer(QGraphicsItem):
         all (``_ALL``), those kept (``_KEPT``) or those drawn over them (``_HOT``)."""
         hot = self._hot_in[group]
         if which == self._HOT and len(hot) * 2 < sum(map(len, self._cells[group].values())):
-            marks = self._within([m for m in hot.values() if m._visible], areas)  # fewer to look at
+            marks = marks_meeting([m for m in hot.values() if m._visible], areas)  # fewer to look at
         else:
             marks = self._in_sight(group, *areas[0].tolist()) if len(areas) == 1 else self._meeting(group, areas)
             if which != self._ALL and hot:

@@ -16,7 +16,7 @@ from PySide6.QtGui import QPainter, QPolygonF
 from PySide6.QtWidgets import QGraphicsScene, QStyleOptionGraphicsItem
 
 from ..sketch.model import Sketch
-from .annotations import CurrentMark, DropMark, FaultNote, LoopMark, PotentialTag, ReadingLayer
+from .annotations import CurrentMark, DropMark, FaultNote, LoopMark, PotentialTag, ReadingLayer, marks_meeting
 from .items import COVER_TEXT, TEXT_LOD, Box, JunctionLayer, LooseEnd, OnPaper, PartItem, WireItem, paint_on_paper, to_scene
 from .symbols import IEC
 from .theme import GRID
@@ -447,17 +447,10 @@ class SketchScene(QGraphicsScene):
             texts += [b[:4] for b in boxes if b[4] >= COVER_TEXT]
         skip = {id(t) for t in placing}
         tags = [t for t in self._tags if t.active and id(t) not in skip]
-        if not tags or not texts:
+        if not texts:
             return []
-        # every tag's box against every text box at once (a paste of many parts meets many tags)
-        boxes, x = np.array([t._scene_box for t in tags]), np.array(texts)
-        meets = np.zeros(len(tags), bool)
-        for k in range(0, len(tags), 256):
-            b = boxes[k:k + 256, None, :]
-            meets[k:k + 256] = ((b[..., 0] < x[:, 2]) & (x[:, 0] < b[..., 2])
-                                & (b[..., 1] < x[:, 3]) & (x[:, 1] < b[..., 3])).any(axis=1)
-        return [t for t, m in zip(tags, meets.tolist())
-                if m and self._tag_cost(t, t._corner) >= t.hides + COVER_TEXT]
+        return [t for t in marks_meeting(tags, np.array(texts))
+                if self._tag_cost(t, t._corner) >= t.hides + COVER_TEXT]
 
     FAR_TAG = 4 * COVER_TEXT  # what hanging a tag farther out costs: as much as hiding 4 px² of text
 
