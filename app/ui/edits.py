@@ -436,26 +436,26 @@ def route_clear(sketch: Sketch, a: GridPoint, b: GridPoint, horizontal_first: bo
 def _run_over(parts: list[tuple[GridPoint, ...]], legs: list[Wire], a: GridPoint, b: GridPoint) -> int:
     """How many bodies of ``parts`` (their terminal points) ``legs`` run along, plus how many
     terminals (not ``a`` or ``b``) they pass."""
-    points: set[GridPoint] = set()
-    runs = []  # (across, the line's other coordinate, low end, high end) per leg
-    for w in legs:
-        (x0, y0), (x1, y1) = sorted(w.ends)
-        if y0 == y1:
-            runs.append((True, y0, x0, x1))
-            points.update((x, y0) for x in range(x0, x1 + 1))
-        else:
-            runs.append((False, x0, y0, y1))
-            points.update((x0, y) for y in range(y0, y1 + 1))
-    points -= {a, b}
+    runs = [_span(*w.ends) for w in legs]
+    points = {(lo + k, line) if across else (line, lo + k) for across, line, lo, hi in runs
+              for k in range(hi - lo + 1)} - {a, b}
     count = 0
     for terms in parts:
         count += sum(1 for t in terms if t in points)
-        if len(terms) == 2:
-            (x0, y0), (x1, y1) = sorted(terms)
-            body = (True, y0, x0, x1) if y0 == y1 else (False, x0, y0, y1) if x0 == x1 else None
-            count += body is not None and any(
-                r[0] == body[0] and r[1] == body[1] and max(r[2], body[2]) < min(r[3], body[3]) for r in runs)
+        body = _span(terms[0], terms[-1]) if len(terms) == 2 else None
+        if body is not None and any(r[:2] == body[:2] and max(r[2], body[2]) < min(r[3], body[3]) for r in runs):
+            count += 1
     return count
+
+
+def _span(p: GridPoint, q: GridPoint) -> tuple[bool, int, int, int] | None:
+    """The straight run from ``p`` to ``q`` as (across, the line's other coordinate, low end,
+    high end); None when the two lie on no common grid line."""
+    if p[1] == q[1]:
+        return True, p[1], min(p[0], q[0]), max(p[0], q[0])
+    if p[0] == q[0]:
+        return False, p[0], min(p[1], q[1]), max(p[1], q[1])
+    return None
 
 
 def wires_edit(sketch: Sketch, wires: Iterable[Wire]) -> Edit:
