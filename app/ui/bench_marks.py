@@ -9,7 +9,6 @@ Points beyond 60 V to ground get a triangle of their own.
 """
 from __future__ import annotations
 
-import math
 from collections.abc import Iterable
 
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
@@ -353,7 +352,6 @@ class BenchMarks:
 
     STEPS_OUT = 3  # how many badge heights a badge may move out to clear another badge
     SPREAD_UP_TO = 40  # more badges keep their own places (the Cautions list has them all): 1 ms at most
-    CELL = 128.0  # hung badges are filed by cells of this size
 
     def _spread(self, bases: dict["Badge", float]) -> None:
         """Hang each badge where, from its own place (``bases``) out to ``STEPS_OUT`` badge
@@ -361,57 +359,37 @@ class BenchMarks:
         nearest of equal places): parts side by side in trouble otherwise hang their badges
         over each other's. The places are worked out as boxes; a badge is laid out again only
         when it moves."""
-        if not bases or len(bases) > self.SPREAD_UP_TO:
+        if len(bases) > self.SPREAD_UP_TO:
             for badge, base in bases.items():
                 self._hang(badge, base)
             return
-        hung: dict[tuple[int, int], list] = {}
+        hung: list[tuple[float, float, float, float]] = []
 
         def at(badge: Badge, offset: float) -> tuple[float, float, float, float]:
             return badge.rect_for(offset).translated(badge.owner.pos()).getCoords()
 
+        def covered(box: tuple[float, float, float, float]) -> float:
+            left, top, right, bottom = box
+            return sum(max(0.0, min(right, o[2]) - max(left, o[0])) * max(0.0, min(bottom, o[3]) - max(top, o[1]))
+                       for o in hung)
+
         for badge in sorted(bases, key=lambda b: at(b, bases[b])[1::-1]):
             base, step = bases[badge], badge.size()[1] + 2
-            best = None
+            places = []
             for k in range(self.STEPS_OUT + 1):
                 box = at(badge, base + k * step)
-                cost = self._covered(box, hung)
-                if best is None or cost < best[0]:
-                    best = (cost, base + k * step, box)
-                if cost == 0:
+                places.append((covered(box), k, box))
+                if places[-1][0] == 0:
                     break
-            self._hang(badge, best[1])
-            self._file(hung, best[2])
+            _, k, box = min(places)
+            self._hang(badge, base + k * step)
+            hung.append(box)
 
     @staticmethod
     def _hang(badge: "Badge", offset: float) -> None:
         if badge.offset != offset:
             badge.offset = offset
             badge.relayout()
-
-    def _file(self, cells: dict, box: tuple[float, float, float, float]) -> None:
-        """File ``box`` (left, top, right, bottom) in every cell it meets."""
-        c = self.CELL
-        for cx in range(math.floor(box[0] / c), math.floor(box[2] / c) + 1):
-            for cy in range(math.floor(box[1] / c), math.floor(box[3] / c) + 1):
-                cells.setdefault((cx, cy), []).append(box)
-
-    def _covered(self, box: tuple[float, float, float, float], cells: dict) -> float:
-        """The area of ``box`` that the boxes filed in ``cells`` cover."""
-        left, top, right, bottom = box
-        c = self.CELL
-        seen, total = set(), 0.0
-        for cx in range(math.floor(left / c), math.floor(right / c) + 1):
-            for cy in range(math.floor(top / c), math.floor(bottom / c) + 1):
-                for other in cells.get((cx, cy), ()):
-                    if id(other) in seen:
-                        continue
-                    seen.add(id(other))
-                    w = min(right, other[2]) - max(left, other[0])
-                    h = min(bottom, other[3]) - max(top, other[1])
-                    if w > 0 and h > 0:
-                        total += w * h
-        return total
 
     @staticmethod
     def _hide(pool: dict, name: str) -> None:
