@@ -54,12 +54,9 @@ def opens_in_the_way(circuit: Circuit, source: str) -> list[str]:
     return [chain.edges[u, v]["name"] for u, v in zip(path, path[1:])]
 
 
-def return_path_hint(circuit: Circuit, source: str, kinds: dict[str, str]) -> str:
-    """A sentence naming what keeps ``source``'s current from flowing ('' when nothing open does);
-    ``kinds`` maps part names to their sketch kinds, for the words."""
-    names = opens_in_the_way(circuit, source)
-    if not names:
-        return ""
+def return_path_hint(names: list[str], source: str, kinds: dict[str, str]) -> str:
+    """A sentence saying that the open parts ``names`` (``opens_in_the_way``) keep ``source``'s
+    current from flowing; ``kinds`` maps part names to their sketch kinds, for the words."""
     said = []
     for n in names:
         kind = kinds.get(n)
@@ -77,5 +74,5 @@ def explained(error: CircuitError, circuit: Circuit, kinds: dict[str, str]) -> t
     if isinstance(error, CurrentSourceCutError) and len(parts) == 1:
         opens = opens_in_the_way(circuit, parts[0])
         if opens:
-            return f"{error.message} {return_path_hint(circuit, parts[0], kinds)}", parts + tuple(opens)
+            return f"{error.message} {return_path_hint(opens, parts[0], kinds)}", parts + tuple(opens)
     return error.message, parts
