@@ -94,20 +94,19 @@ def set_theme(theme: Theme | None) -> None:
 
 
 # the window's own colours (panels, menus, tables) per scheme, for when the scheme chosen is
-# not the system's: (role, colour) for every colour group, then the disabled group's texts
+# not the system's; their texts are the scheme's ink (``window_palette``), disabled ones dimmer
 _WINDOW_COLOURS = {
-    "dark": {"Window": "#262b2e", "WindowText": "#d5dbde", "Base": "#1d2124", "AlternateBase": "#23282b",
-             "Text": "#d5dbde", "Button": "#30363a", "ButtonText": "#d5dbde", "BrightText": "#ffffff",
-             "Highlight": "#2f6690", "HighlightedText": "#ffffff", "ToolTipBase": "#2c3236",
-             "ToolTipText": "#d5dbde", "PlaceholderText": "#8d989d", "Link": "#7db4dc",
+    "dark": {"Window": "#262b2e", "Base": "#1d2124", "AlternateBase": "#23282b", "Button": "#30363a",
+             "BrightText": "#ffffff", "Highlight": "#2f6690", "HighlightedText": "#ffffff",
+             "ToolTipBase": "#2c3236", "PlaceholderText": "#8d989d", "Link": "#7db4dc",
              "Light": "#464d52", "Midlight": "#3a4146", "Mid": "#30363a", "Dark": "#16191b", "Shadow": "#0c0e0f"},
-    "light": {"Window": "#efede6", "WindowText": "#27343b", "Base": "#fbfaf6", "AlternateBase": "#f2f0e9",
-              "Text": "#27343b", "Button": "#e6e3da", "ButtonText": "#27343b", "BrightText": "#ffffff",
-              "Highlight": "#2f6f9c", "HighlightedText": "#ffffff", "ToolTipBase": "#fbfaf6",
-              "ToolTipText": "#27343b", "PlaceholderText": "#6b7478", "Link": "#2f6f9c",
+    "light": {"Window": "#efede6", "Base": "#fbfaf6", "AlternateBase": "#f2f0e9", "Button": "#e6e3da",
+              "BrightText": "#ffffff", "Highlight": "#2f6f9c", "HighlightedText": "#ffffff",
+              "ToolTipBase": "#fbfaf6", "PlaceholderText": "#6b7478", "Link": "#2f6f9c",
               "Light": "#ffffff", "Midlight": "#f4f2ec", "Mid": "#b9b5aa", "Dark": "#8f8b80", "Shadow": "#5a5750"},
 }
 _DISABLED = {"dark": "#6f7a7f", "light": "#9aa2a6"}
+_TEXTS = ("WindowText", "Text", "ButtonText", "ToolTipText")
 
 
 def window_palette(theme: Theme) -> QPalette:
@@ -116,6 +115,8 @@ def window_palette(theme: Theme) -> QPalette:
     pal = QPalette()
     for role, colour in _WINDOW_COLOURS[theme.name].items():
         pal.setColor(getattr(QPalette.ColorRole, role), QColor(colour))
+    for role in _TEXTS:
+        pal.setColor(getattr(QPalette.ColorRole, role), theme.ink)
     for role in ("WindowText", "Text", "ButtonText", "PlaceholderText"):
         pal.setColor(QPalette.ColorGroup.Disabled, getattr(QPalette.ColorRole, role), QColor(_DISABLED[theme.name]))
     return pal
