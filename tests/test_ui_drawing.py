@@ -77,13 +77,14 @@ def wire(qtbot, win, *points):
     key(qtbot, win, Qt.Key.Key_Escape)
 
 
-def drag(win, a, b):
-    """Press at grid point a, move in steps to b, release (real mouse events on the viewport)."""
+def drag(win, a, b, modifiers=Qt.KeyboardModifier.NoModifier):
+    """Press at grid point a, move in steps to b, release (real mouse events on the viewport,
+    with ``modifiers`` held)."""
     vp = win.view.viewport()
     buttons = Qt.MouseButton.LeftButton
 
     def send(kind, pos, btn, held):
-        ev = QMouseEvent(kind, QPointF(pos), QPointF(vp.mapToGlobal(pos)), btn, held, Qt.KeyboardModifier.NoModifier)
+        ev = QMouseEvent(kind, QPointF(pos), QPointF(vp.mapToGlobal(pos)), btn, held, modifiers)
         QApplication.sendEvent(vp, ev)
 
     p0 = at(win, *a)

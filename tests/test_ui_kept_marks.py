@@ -25,7 +25,7 @@ from pathlib import Path
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
 import numpy as np  # noqa: E402
-from PySide6.QtCore import QPointF  # noqa: E402
+from PySide6.QtCore import QPointF, Qt  # noqa: E402
 
 from app.ui.annotations import ReadingLayer  # noqa: E402
 from ui_support import canvas_pixels as _canvas, open_window  # noqa: E402
@@ -81,8 +81,9 @@ def _settle(qtbot, win) -> None:
 
 
 def _move(qtbot, win, name: str, dy: int) -> None:
+    """The part moved off what it touches (a plain move keeps it joined, and values stay)."""
     win.scene.select([name])
-    win.editor.nudge(0, dy)
+    win.editor.nudge(0, dy, apart=True)
     _settle(qtbot, win)
 
 
@@ -212,7 +213,7 @@ def test_a_part_dragged_with_the_mouse_leaves_the_canvas_as_a_full_repaint_draws
     _canvas(win)
     for k in range(4):
         a, b = (mid, (mid[0], mid[1] + 1)) if k % 2 == 0 else ((mid[0], mid[1] + 1), mid)
-        drag(win, a, b)
+        drag(win, a, b, Qt.KeyboardModifier.AltModifier)  # Alt: off the parts it touches, so values change
         _settle(qtbot, win)
         assert win.editor.sketch.part(part.name).y == part.y + (1 if k % 2 == 0 else 0)
         used.clear()

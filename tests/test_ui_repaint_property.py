@@ -84,7 +84,7 @@ def test_an_edit_that_changes_most_values_repaints_every_view_that_shows_them(qt
         for k in range(4):
             sizes.clear()
             win.scene.select([victim])
-            win.editor.nudge(0, 1 if k % 2 == 0 else -1)
+            win.editor.nudge(0, 1 if k % 2 == 0 else -1, apart=True)  # off the parts it touches
             qtbot.waitUntil(lambda: not win.solver.busy)
             win.scene.settle_marks()
             assert max(sizes) > ReadingLayer.FEW  # the path under test

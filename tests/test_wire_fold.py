@@ -28,6 +28,7 @@ from app.ui.edits import Edit, apply_edit, move_target, route, straighten  # noq
 from solver import solve  # noqa: E402
 
 from reference_nodal import nodal_solve  # noqa: E402
+from sketch_joins import joined  # noqa: E402
 from ui_support import open_window  # noqa: E402
 
 DEMO = Path(__file__).resolve().parent.parent / "demo_circuits" / "bench_supply_fixture.lwsk"
@@ -37,27 +38,6 @@ GridPoint = tuple[int, int]
 # -- reading a sketch ------------------------------------------------------------------------
 def segments(wires) -> set[Wire]:
     return {w.normalized() for w in wires}
-
-
-def joined(sketch: Sketch) -> frozenset[frozenset[tuple[str, int]]]:
-    """Which terminals are joined: the groups of (part, terminal index) on one node."""
-    net = to_circuit(sketch)
-    up: dict[str, str] = {}
-
-    def find(x: str) -> str:
-        up.setdefault(x, x)
-        while up[x] != x:
-            x = up[x]
-        return x
-
-    for p in net.circuit.parts:
-        if p.kind == "wire":
-            up[find(p.a)] = find(p.b)
-    groups: dict[str, set[tuple[str, int]]] = {}
-    for part in sketch.parts:
-        for k, t in enumerate(part.terminals()):
-            groups.setdefault(find(net.point_at[t]), set()).add((part.name, k))
-    return frozenset(frozenset(g) for g in groups.values())
 
 
 def _on(w: Wire, q: GridPoint) -> bool:
@@ -109,9 +89,8 @@ def test_demo_move_and_back_leaves_no_stub_and_the_same_wires(qtbot, tmp_path):
     win = open_window(qtbot, tmp_path, DEMO)
     start = load_sketch(DEMO)
     before = currents(win.sketch)
-    win.scene.select(["R2"])
     for dx, dy in [(1, 0), (0, 2), (-1, -2)]:
-        win.editor.nudge(dx, dy)
+        win.editor.move(["R2"], [], dx, dy)  # three moves, each on the document the last one left
         assert not dead_folds(win.sketch)
     assert win.sketch.part("R2") == start.part("R2")
     assert to_circuit(win.sketch).open_ends == []          # (9, 2) and (9, 6) were left open before
@@ -167,8 +146,8 @@ def test_demo_moved_with_arrow_keys_and_dragged_back(qtbot, tmp_path):
     assert to_circuit(win.sketch).open_ends == []
     assert segments(win.sketch.wires) == segments(start.wires)
     assert joined(win.sketch) == joined(start)
-    assert win.stack.count() == 4         # three key steps and one drag
-    for _ in range(4):
+    assert win.stack.count() == 2         # the key steps in a row are one move, then the drag
+    for _ in range(2):
         qtbot.keyClick(win.view, Qt.Key.Key_Z, Qt.KeyboardModifier.ControlModifier)
     assert win.sketch == start
 
@@ -191,11 +170,10 @@ def test_demo_dragged_there_and_back_is_one_step(qtbot, tmp_path):
         win.editor.drag_to(dx, dy)
     win.editor.end_drag()
     assert win.sketch.wires == start.wires
-    assert win.stack.count() == 3         # two nudges and the drag, merged into one step
+    assert win.stack.count() == 2         # the two nudges in a row are one step, the drag another
     win.stack.undo()
     assert win.sketch.part("R2").y == start.part("R2").y + 2
     assert win.sketch.wires != start.wires
-    win.stack.undo()
     win.stack.undo()
     assert win.sketch == start
     for _ in range(3):

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 import bisect
 from collections import Counter, defaultdict
-from collections.abc import Callable
+from collections.abc import Callable, Iterable
 from dataclasses import dataclass, field
 from itertools import chain
 
@@ -21,7 +21,7 @@ from .bench_parts import cable_resistance, lamp_hot_resistance
 from .kinds import KINDS
 from .model import PlacedPart, Sketch, Wire
 
-__all__ = ["Netlist", "to_circuit", "WIRE_PREFIX", "GROUND_TIE_PREFIX", "point_name"]
+__all__ = ["Netlist", "to_circuit", "wire_groups", "PointGroups", "WIRE_PREFIX", "GROUND_TIE_PREFIX", "point_name"]
 
 GridPoint = tuple[int, int]
 
@@ -188,7 +188,7 @@ def _physical(part: PlacedPart, resistance: Callable[[], float]) -> float:
         raise CircuitError(f"{part.name}: {e}", [part.name]) from None
 
 
-class _Groups:
+class PointGroups:
     """Union-find over grid points (path halving)."""
 
     def __init__(self) -> None:
@@ -204,6 +204,20 @@ class _Groups:
 
     def join(self, p: GridPoint, q: GridPoint) -> None:
         self._up[self.find(p)] = self.find(q)
+
+
+def wire_groups(wires: list[Wire], terminals: Iterable[GridPoint]) -> PointGroups:
+    """Which grid points ``wires`` join, by this module's rules (ends that touch, a wire end
+    or one of ``terminals`` on the middle of a wire), as groups: ``find(p) == find(q)``
+    when p and q are on one conductor. Parts join nothing here."""
+    stops = set(terminals)
+    for w in wires:
+        stops.add((w.x1, w.y1))
+        stops.add((w.x2, w.y2))
+    groups = PointGroups()
+    for piece in _pieces(wires, sorted(stops)):
+        groups.join(piece.a, piece.b)
+    return groups
 
 
 @dataclass(frozen=True)
@@ -350,7 +364,7 @@ def _tie_grounds(ties: list[tuple[str, str, str]], grounds: list[GridPoint], pie
     points = list(dict.fromkeys(grounds))
     n = 0
     if len(points) > 1:
-        groups = _Groups()  # which points the wires already join
+        groups = PointGroups()  # which points the wires already join
         for piece in pieces:
             groups.join(piece.a, piece.b)
         previous = None

@@ -36,7 +36,10 @@ class Editor:
         self.sketch = sketch
         self.scene = scene
         self.stack = stack
-        self._drag: tuple | None = None
+        self._drag: tuple | None = None  # the mouse's move under way (``_carry_from_here``)
+        self._keys: tuple | None = None  # the keys' move under way, and what must hold for it to go on
+        self._stack_changes = 0  # undo stack index changes: any other step ends a move by keys
+        stack.indexChanged.connect(self._stack_changed)
         self._paste_shift = 0
 
     # -- plumbing -----------------------------------------------------------------
@@ -84,16 +87,25 @@ class Editor:
     def delete_selection(self) -> None:
         self.delete(self.scene.selected_parts(), self.scene.selected_wires())
 
-    def move(self, names: list[str], wires: list[int], dx: int, dy: int, merge_key: object = None) -> None:
-        """Move parts and wires by (dx, dy); attached wires stretch to follow."""
+    def move(self, names: list[str], wires: list[int], dx: int, dy: int, merge_key: object = None,
+             apart: bool = False) -> None:
+        """Move parts and wires by (dx, dy); attached wires stretch to follow, and what the
+        moved parts touch directly stays joined by a new wire, unless ``apart`` (they come
+        away from it)."""
         if not (names or wires) or (dx, dy) == (0, 0):
             return
         movers = {n: self.sketch.part(n) for n in names}
         base = tuple(self.sketch.wires)
-        new_parts, new_wires = move_target(movers, base, wires, dx, dy)
+        new_parts, new_wires = move_target(movers, base, wires, dx, dy,
+                                           None if apart else self._staying(names))
         edit = Edit([(movers[n], new_parts[n], None) for n in names], base, new_wires)
-        self.push(edit, "Move", merge_key)
+        self.push(edit, "Move apart" if apart else "Move", merge_key)
         self._reselect(names, new_wires, base, wires, dx, dy)
+
+    def _staying(self, names: list[str]) -> set[GridPoint]:
+        """The terminals of the parts not in ``names``."""
+        moving = set(names)
+        return {t for p in self.sketch.parts if p.name not in moving for t in p.terminal_points}
 
     def _reselect(self, names, new_wires, base, wires, dx, dy) -> None:
         if wires:
@@ -103,31 +115,60 @@ class Editor:
 
     def begin_drag(self) -> None:
         """Remember the selection and document before a drag, so its steps merge into one."""
-        names = self.scene.selected_parts()
-        wires = self.scene.selected_wires()
-        self._drag = (next(_drag_ids), names, wires,
-                      {n: self.sketch.part(n) for n in names}, tuple(self.sketch.wires), (0, 0))
+        self._drag = self._carry_from_here()
 
-    def drag_to(self, dx: int, dy: int) -> None:
-        """Move the dragged selection to (dx, dy) grid steps from where the drag began."""
-        if self._drag is None:
-            return
-        key, names, wires, movers, base, last = self._drag
-        if (dx, dy) == last:
-            return
-        new_parts, new_wires = move_target(movers, base, wires, dx, dy)
-        edit = Edit([(self.sketch.part(n), new_parts[n], None) for n in names],
-                    tuple(self.sketch.wires), new_wires)
-        self._drag = (key, names, wires, movers, base, (dx, dy))
-        self.push(edit, "Move", ("drag", key))
-        self._reselect(names, new_wires, base, wires, dx, dy)
+    def drag_to(self, dx: int, dy: int, apart: bool = False) -> None:
+        """Move the dragged selection to (dx, dy) grid steps from where the drag began
+        (``apart``: coming away from what it touches, as ``move``)."""
+        if self._drag is not None:
+            self._drag = self._carry_to(self._drag, dx, dy, apart)
 
     def end_drag(self) -> None:
         self._drag = None
 
-    def nudge(self, dx: int, dy: int) -> None:
-        """Move the selection one step with the keyboard."""
-        self.move(self.scene.selected_parts(), self.scene.selected_wires(), dx, dy)
+    def nudge(self, dx: int, dy: int, apart: bool = False) -> None:
+        """Move the selection (dx, dy) by keys (``apart``: as ``move``).
+
+        Steps in a row on one selection, with nothing else done between them, are one move
+        from where the first began, as a drag is: one undo step, and what the selection
+        passes over on the way is not joined to it (only where it ends up).
+        """
+        keys = self._keys
+        if keys is None or keys[1] != self._keys_mark():
+            carry = self._carry_from_here()
+            if not (carry[1] or carry[2]):
+                return
+        else:
+            carry = keys[0]
+        at = carry[-1]
+        carry = self._carry_to(carry, at[0] + dx, at[1] + dy, apart)
+        self._keys = (carry, self._keys_mark())
+
+    def _keys_mark(self) -> tuple:
+        """What must not change between two key steps for them to be one move."""
+        return self._stack_changes, self.scene.selected_parts(), self.scene.selected_wires()
+
+    def _stack_changed(self) -> None:
+        self._stack_changes += 1
+
+    def _carry_from_here(self) -> tuple:
+        """A move of the selection about to start: (merge key, part names, wire indices,
+        the parts, the wires, the staying terminals, (dx, dy, apart) so far)."""
+        names = self.scene.selected_parts()
+        return (next(_drag_ids), names, self.scene.selected_wires(), {n: self.sketch.part(n) for n in names},
+                tuple(self.sketch.wires), self._staying(names), (0, 0, False))
+
+    def _carry_to(self, carry: tuple, dx: int, dy: int, apart: bool) -> tuple:
+        """Take the move ``carry`` to (dx, dy) from its start; the carry as it now is."""
+        key, names, wires, movers, base, staying, last = carry
+        if (dx, dy, apart) == last:
+            return carry
+        new_parts, new_wires = move_target(movers, base, wires, dx, dy, None if apart else staying)
+        edit = Edit([(self.sketch.part(n), new_parts[n], None) for n in names],
+                    tuple(self.sketch.wires), new_wires)
+        self.push(edit, "Move", ("drag", key))
+        self._reselect(names, new_wires, base, wires, dx, dy)
+        return key, names, wires, movers, base, staying, (dx, dy, apart)
 
     def rotate(self, names: list[str], mirror: bool = False) -> None:
         if names:

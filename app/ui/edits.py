@@ -16,8 +16,10 @@ from __future__ import annotations
 from collections import defaultdict
 from collections.abc import Iterable
 from dataclasses import dataclass, field, replace
+from itertools import chain
 
 from ..sketch.model import PlacedPart, Sketch, Wire, transform
+from ..sketch.netlist import wire_groups
 
 __all__ = [
     "Edit", "apply_edit", "revert_edit", "compose", "set_wires",
@@ -128,23 +130,92 @@ def _shift(w: Wire, dx: int, dy: int) -> Wire:
 
 
 def move_target(parts: dict[str, PlacedPart], wires: tuple[Wire, ...], wire_indices: Iterable[int],
-                dx: int, dy: int) -> tuple[dict[str, PlacedPart], tuple[Wire, ...]]:
+                dx: int, dy: int, staying: Iterable[GridPoint] | None = None
+                ) -> tuple[dict[str, PlacedPart], tuple[Wire, ...]]:
     """Where ``parts`` and the selected wires go when moved by (dx, dy).
 
     Unselected wires with one end on a moved point are stretched: kept in
     their direction from the fixed end, with a right-angle bend added where
     needed; wires with both ends on moved points move whole.
+
+    ``staying`` (the terminals of the parts that do not move) keeps the moved
+    things joined to what they touch directly (``_contacts``): each such point
+    gets a wire from where it was to where it goes (``_links``), so a move
+    never changes which terminals are joined. None lets the moved things come
+    away from what they touch (only wires follow).
     """
     selected = set(wire_indices)
-    moved: set[GridPoint] = set()
+    ends: set[GridPoint] = set()  # where the moved things connect: terminals and wire ends
     for p in parts.values():
-        moved.update(p.terminals())
+        ends.update(p.terminals())
+    for i in selected:
+        ends.update(wires[i].ends)
+    moved = set(ends)
     for i in selected:
         moved.update(wires[i].points())
     new_parts = {n: replace(p, x=p.x + dx, y=p.y + dy) for n, p in parts.items()}
     shifted = [_shift(w, dx, dy) if i in selected else w for i, w in enumerate(wires)]
     goes_to = {pt: (pt[0] + dx, pt[1] + dy) for pt in moved}
-    return new_parts, follow_points(tuple(shifted), goes_to, skip=selected)
+    followed = follow_points(tuple(shifted), goes_to, skip=selected)
+    joins = [] if staying is None else _contacts(ends, moved, set(staying), wires, selected)
+    if not joins:
+        return new_parts, followed
+    bodies = [p.terminal_points for p in new_parts.values()]
+    return new_parts, _with_links(followed, _links(joins, goes_to, bodies, followed, staying))
+
+
+def _contacts(ends: set[GridPoint], moved: set[GridPoint], staying: set[GridPoint], wires: tuple[Wire, ...],
+             selected: set[int]) -> list[GridPoint]:
+    """The points where what moves touches what stays other than at a wire's end (wire ends
+    follow): a point of a moved thing (``moved``: terminals and every point of the selected
+    wires) on a ``staying`` terminal, and a moved terminal or wire end (``ends``) on the
+    middle of a wire not ``selected`` (where two wires merely cross, nothing is joined).
+    """
+    out = moved & staying
+    rows: dict[int, list[GridPoint]] = defaultdict(list)
+    cols: dict[int, list[GridPoint]] = defaultdict(list)
+    for p in ends:
+        rows[p[1]].append(p)
+        cols[p[0]].append(p)
+    for i, w in enumerate(wires):
+        run = _span(*w.ends)
+        if i in selected or run is None:
+            continue
+        across, line, lo, hi = run
+        out.update(p for p in (rows if across else cols).get(line, ()) if lo < p[0 if across else 1] < hi)
+    return sorted(out)
+
+
+def _links(points: Iterable[GridPoint], goes_to: dict[GridPoint, GridPoint], bodies: list[tuple[GridPoint, ...]],
+           wires: tuple[Wire, ...], staying: Iterable[GridPoint]) -> list[Wire]:
+    """Wires from each of ``points`` to where it went (``goes_to``), where ``wires`` (as they
+    are after the move) and the other links do not join the two already; with the bend that
+    runs over fewer of ``bodies`` (the moved parts' terminals: a link laid along a moved
+    part's body hides it, and shorts it if it reaches the other terminal). ``staying``: the
+    terminals that do not move."""
+    points = list(points)
+    groups = wire_groups(list(wires), chain(staying, chain.from_iterable(bodies), points,
+                                            (goes_to[p] for p in points)))
+    out = []
+    for p in points:
+        q = goes_to[p]
+        if groups.find(p) == groups.find(q):
+            continue
+        groups.join(p, q)
+        legs = route(p, q)
+        if len(legs) == 2:
+            other = route(p, q, False)
+            if _run_over(bodies, other, p, q) < _run_over(bodies, legs, p, q):
+                legs = other
+        out += legs
+    return out
+
+
+def _with_links(followed: "FollowedWires", extra: list[Wire]) -> "FollowedWires":
+    """``followed`` with ``extra`` wires added after it, as changed wires (their folds straightened)."""
+    n = len(followed)
+    return FollowedWires(tuple(followed) + tuple(extra), followed.changed | set(range(n, n + len(extra))),
+                         followed.carried)
 
 
 class FollowedWires(tuple):
@@ -471,7 +542,9 @@ def wires_edit(sketch: Sketch, wires: Iterable[Wire]) -> Edit:
 
 
 def rotate_edit(sketch: Sketch, names: Iterable[str], *, mirror: bool = False) -> Edit:
-    """Turn (or mirror) the named parts about their middles; wires on their terminals follow."""
+    """Turn (or mirror) the named parts about their middles; wires on their terminals follow,
+    and what a turned terminal touched directly stays joined to it by a new wire (``_links``)."""
+    names = list(names)
     news, goes_to = [], {}
     for n in names:
         old = sketch.part(n)
@@ -482,7 +555,14 @@ def rotate_edit(sketch: Sketch, names: Iterable[str], *, mirror: bool = False) -
                 goes_to[a] = b
     edit = change_edit(sketch, news)
     before = tuple(sketch.wires)
-    return Edit(edit.parts, before, follow_points(before, goes_to))
+    followed = follow_points(before, goes_to)
+    turning = set(names)
+    staying = {t for p in sketch.parts if p.name not in turning for t in p.terminal_points}
+    joins = _contacts(set(goes_to), set(goes_to), staying, before, set())
+    if joins:
+        followed = _with_links(followed, _links(joins, goes_to, [new.terminal_points for _, new in news],
+                                                followed, staying))
+    return Edit(edit.parts, before, followed)
 
 
 def rotate_target(part: PlacedPart, *, mirror: bool = False) -> PlacedPart:

@@ -20,6 +20,8 @@ __all__ = ["CANVAS_KEYS", "key_rows", "KeysDialog", "show_about"]
 CANVAS_KEYS = [
     ("Arrows", "nudge the selection one grid step; while drawing, move the cursor"),
     ("Shift+Arrows", "the same, four grid steps"),
+    ("Alt+Arrows, Alt+drag", "move the selection off what it touches (a plain move keeps every "
+                             "connection, adding a wire where parts touched directly)"),
     ("Enter", "place the part or a wire corner at the cursor; with one part selected, edit its value"),
     ("Esc", "end the wire being drawn, or put the tool down"),
     ("Tab, Shift+Tab", "select the next or the previous part"),

@@ -312,7 +312,8 @@ class CanvasView(QGraphicsView):
                     return
                 self._dragging = True
                 self.editor.begin_drag()
-            self.editor.drag_to(point[0] - self._press[0], point[1] - self._press[1])
+            self.editor.drag_to(point[0] - self._press[0], point[1] - self._press[1],
+                                apart=bool(event.modifiers() & Qt.KeyboardModifier.AltModifier))
             event.accept()
             return
         self.pointerMoved.emit(*point)
@@ -392,7 +393,7 @@ class CanvasView(QGraphicsView):
         if key in arrows and self.editor is not None:
             dx, dy = arrows[key]
             if self.mode == SELECT:
-                self.editor.nudge(dx * big, dy * big)
+                self.editor.nudge(dx * big, dy * big, apart=bool(mods & Qt.KeyboardModifier.AltModifier))
             else:
                 self.move_cursor_to((self.cursor_point[0] + dx * big, self.cursor_point[1] + dy * big))
             event.accept()

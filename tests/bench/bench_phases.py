@@ -4,7 +4,7 @@ Run: QT_QPA_PLATFORM=offscreen python tests/bench/bench_phases.py [--parts 200] 
      [--edit move|value] [--without STAGE]
 
 Two ways to look at one edit (the edits are ``bench_live``'s: a part moved down and back up,
-or a value cycled through seven):
+off its neighbours or joined to them, or a value cycled through seven):
 
 - By default each stage in ``STAGES`` is timed where it runs, and its mean time per edit
   printed; a stage's time takes in the stages it calls (shown indented under it).
@@ -79,7 +79,9 @@ def main(argv: list[str]) -> int:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--parts", type=int, default=200, choices=(20, 200, 2000))
     parser.add_argument("--view", default="100", choices=("100", "whole"))
-    parser.add_argument("--edit", default="move", choices=("move", "value"))
+    parser.add_argument("--edit", default="apart", choices=("apart", "move", "value"),
+                        help="apart (default): a part moved off its neighbours (Alt held), most values "
+                             "change; move: a plain move, the part stays joined; value: a new resistance")
     parser.add_argument("--edits", type=int, default=240, help="edits to make (default 240)")
     parser.add_argument("--without", choices=[label for label, _, _ in STAGES], metavar="STAGE",
                         help="a stage to switch off in every other block of edits: " +
@@ -120,14 +122,14 @@ def main(argv: list[str]) -> int:
     times: dict[bool, list[float]] = {False: [], True: []}
     for k in range(args.edits):
         off[0] = args.without is not None and (k // BLOCK) % 2 == 1
-        if args.edit == "move":
+        if args.edit != "value":
             win.scene.select([victim])  # clicked before the move, as a person does
             app.processEvents()
         counts = k >= BLOCK and k % BLOCK >= 2  # the first block warms up, and the first two of each switch
         live[0] = counts
         t = time.thread_time()
-        if args.edit == "move":
-            win.editor.nudge(0, 1 if k % 2 == 0 else -1)
+        if args.edit != "value":
+            win.editor.nudge(0, 1 if k % 2 == 0 else -1, apart=args.edit == "apart")
         else:
             win.editor.set_values(victim, {"resistance": 1000.0 + (k % 7) * 100.0})
         wait_for_result(app, win)
