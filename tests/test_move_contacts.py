@@ -155,3 +155,33 @@ def test_no_move_parts_terminals_that_were_joined(picks, dx, dy, wired):
     new_parts, new_wires = move_target(movers, base, [0] if wired else [], dx, dy, staying)
     apply_edit(s, Edit([(movers[n], new_parts[n], None) for n in names], base, new_wires))
     assert before <= pairs(joined(s))
+
+
+def along_body(sketch: Sketch, name: str) -> list[Wire]:
+    """The wires lying along the body of two-terminal part ``name`` (sharing more than a point of its line)."""
+    (ax, ay), (bx, by) = sketch.part(name).terminals()
+    out = []
+    for w in sketch.wires:
+        if ax == bx == w.x1 == w.x2:
+            lo, hi = sorted((w.y1, w.y2))
+            if max(lo, min(ay, by)) < min(hi, max(ay, by)):
+                out.append(w)
+        elif ay == by == w.y1 == w.y2:
+            lo, hi = sorted((w.x1, w.x2))
+            if max(lo, min(ax, bx)) < min(hi, max(ax, bx)):
+                out.append(w)
+    return out
+
+
+def test_a_wire_following_a_turned_part_is_not_laid_along_its_body():
+    """R1 turned upright about its middle: the wire on its right end keeping its direction
+    would run into the middle and down the new body; it turns at its fixed end instead."""
+    s = Sketch()
+    s.add_part(PlacedPart("resistor", "R1", 0, 0, 0, False, {"resistance": 100.0}))
+    s.add_part(PlacedPart("resistor", "R2", 8, 0, 90, False, {"resistance": 220.0}))
+    s.add_wire(Wire(4, 0, 8, 0))
+    before = joined(s)
+    apply_edit(s, rotate_edit(s, ["R1"]))
+    assert s.part("R1").terminals()[1] in {(2, 2), (2, -2)}
+    assert along_body(s, "R1") == []
+    assert joined(s) == before

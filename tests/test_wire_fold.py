@@ -95,7 +95,9 @@ def test_demo_move_and_back_leaves_no_stub_and_the_same_wires(qtbot, tmp_path):
     assert win.sketch.part("R2") == start.part("R2")
     assert to_circuit(win.sketch).open_ends == []          # (9, 2) and (9, 6) were left open before
     assert segments(win.sketch.wires) == segments(start.wires)
-    assert win.sketch.wires == start.wires                  # the very list, order and end order too
+    # (not the very list: on the way a stretched wire turned at its fixed end rather than run
+    # down R2's body, and it comes back as the same run, listed last)
+    assert joined(win.sketch) == joined(start)
     after = currents(win.sketch)
     assert after == pytest.approx(before, rel=1e-12)
     # Independent check, Ohm's law with series/parallel resistances: 12 V over 0.05 + 47 + 100 || (220 + 330).
@@ -112,7 +114,7 @@ def test_demo_move_and_back_leaves_no_stub_and_the_same_wires(qtbot, tmp_path):
     assert win.sketch == start
     for _ in range(3):
         win.stack.redo()
-    assert win.sketch.wires == start.wires
+    assert segments(win.sketch.wires) == segments(start.wires)
 
 
 def _mouse_drag(win, a: tuple[float, float], b: tuple[float, float]) -> None:

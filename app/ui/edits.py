@@ -156,11 +156,11 @@ def move_target(parts: dict[str, PlacedPart], wires: tuple[Wire, ...], wire_indi
     new_parts = {n: replace(p, x=p.x + dx, y=p.y + dy) for n, p in parts.items()}
     shifted = [_shift(w, dx, dy) if i in selected else w for i, w in enumerate(wires)]
     goes_to = {pt: (pt[0] + dx, pt[1] + dy) for pt in moved}
-    followed = follow_points(tuple(shifted), goes_to, skip=selected)
+    bodies = [p.terminal_points for p in new_parts.values()]
+    followed = follow_points(tuple(shifted), goes_to, skip=selected, bodies=bodies)
     joins = [] if staying is None else _contacts(ends, moved, set(staying), wires, selected)
     if not joins:
         return new_parts, followed
-    bodies = [p.terminal_points for p in new_parts.values()]
     return new_parts, _with_links(followed, _links(joins, goes_to, bodies, followed, staying))
 
 
@@ -203,11 +203,7 @@ def _links(points: Iterable[GridPoint], goes_to: dict[GridPoint, GridPoint], bod
             continue
         groups.join(p, q)
         legs = route(p, q)
-        if len(legs) == 2:
-            other = route(p, q, False)
-            if _run_over(bodies, other, p, q) < _run_over(bodies, legs, p, q):
-                legs = other
-        out += legs
+        out += _fewer_over(bodies, legs, route(p, q, False), p, q) if len(legs) == 2 else legs
     return out
 
 
@@ -244,7 +240,7 @@ class FollowedWires(tuple):
 
 
 def follow_points(wires: tuple[Wire, ...], goes_to: dict[GridPoint, GridPoint],
-                  skip: Iterable[int] = ()) -> FollowedWires:
+                  skip: Iterable[int] = (), bodies: list[tuple[GridPoint, ...]] = ()) -> FollowedWires:
     """The wires after the points in ``goes_to`` moved (terminals of moved or turned parts).
 
     A wire with both ends moving goes with them when it stays straight; a wire
@@ -253,7 +249,10 @@ def follow_points(wires: tuple[Wire, ...], goes_to: dict[GridPoint, GridPoint],
     wire indices before them keep their meaning).  A changed wire keeps the
     order of its ends.  Wires in ``skip`` are left as they are (already placed
     by the caller).  Folds this makes are straightened when the edit is
-    applied (see ``FollowedWires``).
+    applied (see ``FollowedWires``).  A stretched wire turns at its fixed
+    end instead where keeping its direction would lay the bend along one of
+    ``bodies`` (the moved parts' terminals; a turned part's body lies across
+    its old terminals' line) and turning first would not.
     """
     skip = set(skip)
     out: list[Wire] = []
@@ -286,7 +285,11 @@ def follow_points(wires: tuple[Wire, ...], goes_to: dict[GridPoint, GridPoint],
         if goal == fixed:
             continue
         if goal[0] != fixed[0] and goal[1] != fixed[1]:
-            corner = (goal[0], fixed[1]) if w.y1 == w.y2 else (fixed[0], goal[1])
+            along = w.y1 == w.y2
+            if bodies:
+                kept = route(fixed, goal, along)
+                along ^= _fewer_over(bodies, kept, route(fixed, goal, not along), fixed, goal) is not kept
+            corner = (goal[0], fixed[1]) if along else (fixed[0], goal[1])
             extra.append(Wire(corner[0], corner[1], goal[0], goal[1]))
             goal = corner
         changed.append(len(out))
@@ -491,16 +494,23 @@ def route_clear(sketch: Sketch, a: GridPoint, b: GridPoint, horizontal_first: bo
     asked = route(a, b, horizontal_first)
     if len(asked) < 2:
         return asked
-    other = route(a, b, not horizontal_first)
+    return _fewer_over([p.terminal_points for p in sketch.parts], asked, route(a, b, not horizontal_first), a, b)
+
+
+def _fewer_over(parts: list[tuple[GridPoint, ...]], asked: list[Wire], other: list[Wire],
+                a: GridPoint, b: GridPoint) -> list[Wire]:
+    """``other`` if it runs over fewer of ``parts`` (their terminal points) than ``asked``
+    (two bends from ``a`` to ``b``, see ``_run_over``), else ``asked``."""
     # both bends lie in the box of a and b: only parts reaching into it can be in the way
     x0, x1 = sorted((a[0], b[0]))
     y0, y1 = sorted((a[1], b[1]))
     near = []
-    for part in sketch.parts:
-        terms = part.terminal_points
+    for terms in parts:
         (ax, ay), (bx, by) = terms[0], terms[-1]
         if min(ax, bx) <= x1 and max(ax, bx) >= x0 and min(ay, by) <= y1 and max(ay, by) >= y0:
             near.append(terms)
+    if not near:
+        return asked
     return other if _run_over(near, other, a, b) < _run_over(near, asked, a, b) else asked
 
 
@@ -555,13 +565,13 @@ def rotate_edit(sketch: Sketch, names: Iterable[str], *, mirror: bool = False) -
                 goes_to[a] = b
     edit = change_edit(sketch, news)
     before = tuple(sketch.wires)
-    followed = follow_points(before, goes_to)
+    turned = [new.terminal_points for _, new in news]
+    followed = follow_points(before, goes_to, bodies=turned)
     turning = set(names)
     staying = {t for p in sketch.parts if p.name not in turning for t in p.terminal_points}
     joins = _contacts(set(goes_to), set(goes_to), staying, before, set())
     if joins:
-        followed = _with_links(followed, _links(joins, goes_to, [new.terminal_points for _, new in news],
-                                                followed, staying))
+        followed = _with_links(followed, _links(joins, goes_to, turned, followed, staying))
     return Edit(edit.parts, before, followed)
 
 
