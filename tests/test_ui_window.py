@@ -190,3 +190,23 @@ def test_no_potential_tag_hides_the_plus_or_minus_of_a_drop(qtbot, tmp_path):
     for tag in (t for t in scene._tags if t.isVisible()):
         box = tag.rect_at(tag._corner).translated(tag.pos())
         assert not any(box.intersects(s) for s in strokes), f"the {tag.text} tag hides a + or −"
+
+
+def test_every_tool_of_the_palette_is_in_sight_in_a_short_window_and_a_tall_one(qtbot, tmp_path):
+    """At 600 px high the names under the icons do not all fit, and Qt would hide the last
+    tools behind the bar's extension button: the names go beside the icons there."""
+    from PySide6.QtWidgets import QApplication
+
+    win = open_window(qtbot, tmp_path, one_loop(), size=(1024, 900))
+    bar = win.palette_bar
+    tools = [a for a in bar.actions() if not a.isSeparator()]
+    for height, style in ((900, Qt.ToolButtonStyle.ToolButtonTextUnderIcon),
+                          (600, Qt.ToolButtonStyle.ToolButtonTextBesideIcon),
+                          (900, Qt.ToolButtonStyle.ToolButtonTextUnderIcon)):
+        win.resize(1024, height)
+        for _ in range(5):
+            QApplication.processEvents()
+        assert bar.toolButtonStyle() == style, height
+        shown = [a.text() for a in tools if bar.widgetForAction(a).isVisible()]
+        assert shown == [a.text() for a in tools], height
+        assert all(bar.rect().contains(bar.widgetForAction(a).geometry()) for a in tools), height

@@ -10,7 +10,7 @@ from pathlib import Path
 from PySide6.QtCore import QEvent, QItemSelection, QItemSelectionModel, QSettings, Qt, QTimer, Signal
 from PySide6.QtGui import QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QUndoStack
 from PySide6.QtWidgets import (QApplication, QFileDialog, QLabel, QMainWindow,
-                               QMessageBox, QSizePolicy, QToolBar, QToolButton, QVBoxLayout, QWidget)
+                               QMessageBox, QSizePolicy, QToolButton, QVBoxLayout, QWidget)
 
 from ..sketch.fileio import SaveError, SketchFileError, load_sketch, save_sketch
 from ..sketch.kinds import KINDS
@@ -22,6 +22,7 @@ from .docks import add_dock
 from .hand_analysis import HandAnalysis
 from .help_dialog import KeysDialog, show_about
 from .icons import tool_icon
+from .parts_bar import PartsBar
 from .properties import InlineValueEditor, PartPanel
 from .readings import ReadingsModel, ReadingsView
 from .scene import SketchScene
@@ -190,11 +191,8 @@ class MainWindow(QMainWindow):
         self.tool_actions[SELECT].setChecked(True)
 
     def _build_palette(self) -> None:
-        bar = QToolBar("Parts", self)
+        bar = PartsBar("Parts", self)
         bar.setObjectName("parts")
-        bar.setOrientation(Qt.Orientation.Vertical)
-        bar.setToolButtonStyle(Qt.ToolButtonStyle.ToolButtonTextUnderIcon)
-        bar.setMovable(False)
         for tool, _, _ in PALETTE:
             bar.addAction(self.tool_actions[tool])
             button = bar.widgetForAction(self.tool_actions[tool])
