@@ -6,6 +6,9 @@ of the loop after a move is checked by Ohm's law, worked by hand.
 """
 from __future__ import annotations
 
+import sys
+from pathlib import Path
+
 import pytest
 
 pytest.importorskip("pytestqt")
@@ -19,6 +22,8 @@ from app.sketch.netlist import to_circuit  # noqa: E402
 from app.ui.edits import Edit, apply_edit, move_target, rotate_edit  # noqa: E402
 from solver import solve  # noqa: E402
 
+sys.path.insert(0, str(Path(__file__).resolve().parent / "bench"))
+from bench_live import grid_sketch  # noqa: E402
 from sketch_joins import joined  # noqa: E402
 from test_ui_drawing import drag  # noqa: E402
 from ui_support import open_window  # noqa: E402
@@ -117,23 +122,12 @@ def test_a_turned_part_stays_joined_to_the_parts_it_touched():
     assert loop_current(s) == pytest.approx(LOOP_AMPS, rel=1e-12)
 
 
-def lattice(cols: int, rows: int) -> Sketch:
-    """Resistors butted along the lines of a grid (4 steps apart), a cell in one corner and a
-    wire across the middle row's ends, so that moves meet terminals, wire ends and wire middles."""
-    s = Sketch()
-    k = 0
-    for r in range(rows):
-        for c in range(cols - 1):
-            k += 1
-            s.add_part(PlacedPart("resistor", f"R{k}", 4 * c, 4 * r, 0, False, {"resistance": 100.0 + k}))
-    for r in range(rows - 1):
-        for c in range(cols):
-            k += 1
-            if k == cols:
-                s.add_part(PlacedPart("cell", "B1", 4 * c, 4 * r, 90, False, {"emf": 9.0}))
-            else:
-                s.add_part(PlacedPart("resistor", f"R{k}", 4 * c, 4 * r, 90, False, {"resistance": 100.0 + k}))
-    s.add_wire(Wire(-2, 4, 4 * cols + 2, 4))
+def lattice() -> Sketch:
+    """``bench_live``'s lattice of resistors butted along the lines of a grid (4 steps apart,
+    a cell in one corner), with a wire across the middle row's ends, so that moves meet
+    terminals, wire ends and wire middles."""
+    s = grid_sketch(20)
+    s.add_wire(Wire(-2, 4, 18, 4))
     return s
 
 
@@ -145,7 +139,7 @@ def test_no_move_parts_terminals_that_were_joined(picks, dx, dy, wired):
     terminals joined before are joined after (a move may join more, where it lands)."""
     if (dx, dy) == (0, 0):
         return
-    s = lattice(4, 3)
+    s = lattice()
     parts = [p for p in s.parts]
     names = sorted({parts[i % len(parts)].name for i in picks})
     before = pairs(joined(s))
