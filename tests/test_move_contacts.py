@@ -122,6 +122,22 @@ def test_a_turned_part_stays_joined_to_the_parts_it_touched():
     assert loop_current(s) == pytest.approx(LOOP_AMPS, rel=1e-12)
 
 
+def test_parts_turned_together_stay_joined_where_they_met():
+    """R1 and R2 in a line, meeting at (4, 0), fed by B1 along the bottom; turned upright
+    together, the two ends that met go opposite ways and a new wire joins them."""
+    s = Sketch()
+    s.add_part(PlacedPart("resistor", "R1", 0, 0, 0, False, {"resistance": 100.0}))
+    s.add_part(PlacedPart("resistor", "R2", 4, 0, 0, False, {"resistance": 220.0}))
+    s.add_part(PlacedPart("cell", "B1", 0, 4, 0, False, {"emf": 12.0, "internal_resistance": 0.5}))
+    for w in (Wire(0, 0, 0, 4), Wire(8, 0, 8, 4), Wire(4, 4, 8, 4)):
+        s.add_wire(w)
+    before = joined(s)
+    apply_edit(s, rotate_edit(s, ["R1", "R2"]))
+    assert s.part("R1").terminals()[1] != s.part("R2").terminals()[0]
+    assert joined(s) == before
+    assert loop_current(s) == pytest.approx(12.0 / (0.5 + 100.0 + 220.0), rel=1e-12)  # Ohm's law, by hand
+
+
 def lattice() -> Sketch:
     """``bench_live``'s lattice of resistors butted along the lines of a grid (4 steps apart,
     a cell in one corner), with a wire across the middle row's ends, so that moves meet
@@ -148,6 +164,18 @@ def test_no_move_parts_terminals_that_were_joined(picks, dx, dy, wired):
     base = tuple(s.wires)
     new_parts, new_wires = move_target(movers, base, [0] if wired else [], dx, dy, staying)
     apply_edit(s, Edit([(movers[n], new_parts[n], None) for n in names], base, new_wires))
+    assert before <= pairs(joined(s))
+
+
+@settings(max_examples=60, deadline=None)
+@given(picks=st.sets(st.integers(0, 15), min_size=1, max_size=4), mirror=st.booleans())
+def test_no_turn_parts_terminals_that_were_joined(picks, mirror):
+    """Any parts turned or mirrored together: every two terminals joined before are joined after."""
+    s = lattice()
+    parts = [p for p in s.parts]
+    names = sorted({parts[i % len(parts)].name for i in picks})
+    before = pairs(joined(s))
+    apply_edit(s, rotate_edit(s, names, mirror=mirror))
     assert before <= pairs(joined(s))
 
 

@@ -161,7 +161,7 @@ def move_target(parts: dict[str, PlacedPart], wires: tuple[Wire, ...], wire_indi
     joins = [] if staying is None else _contacts(ends, moved, set(staying), wires, selected)
     if not joins:
         return new_parts, followed
-    return new_parts, _with_links(followed, _links(joins, goes_to, bodies, followed, staying))
+    return new_parts, _with_links(followed, _links([(p, goes_to[p]) for p in joins], bodies, followed, staying))
 
 
 def _contacts(ends: set[GridPoint], moved: set[GridPoint], staying: set[GridPoint], wires: tuple[Wire, ...],
@@ -186,25 +186,39 @@ def _contacts(ends: set[GridPoint], moved: set[GridPoint], staying: set[GridPoin
     return sorted(out)
 
 
-def _links(points: Iterable[GridPoint], goes_to: dict[GridPoint, GridPoint], bodies: list[tuple[GridPoint, ...]],
+def _links(pairs: list[tuple[GridPoint, GridPoint]], bodies: list[tuple[GridPoint, ...]],
            wires: tuple[Wire, ...], staying: Iterable[GridPoint]) -> list[Wire]:
-    """Wires from each of ``points`` to where it went (``goes_to``), where ``wires`` (as they
-    are after the move) and the other links do not join the two already; with the bend that
-    runs over fewer of ``bodies`` (the moved parts' terminals: a link laid along a moved
-    part's body hides it, and shorts it if it reaches the other terminal). ``staying``: the
-    terminals that do not move."""
-    points = list(points)
-    groups = wire_groups(list(wires), chain(staying, chain.from_iterable(bodies), points,
-                                            (goes_to[p] for p in points)))
+    """Wires joining each pair of points (a point where a moved thing was and where it went,
+    say), where ``wires`` (as they are after the move) and the other links do not join the two
+    already; with the bend that runs over fewer of ``bodies`` (the moved parts' terminals: a
+    link laid along a moved part's body hides it, and shorts it if it reaches the other
+    terminal). ``staying``: the terminals that do not move."""
+    groups = wire_groups(list(wires), chain(staying, chain.from_iterable(bodies), chain.from_iterable(pairs)))
     out = []
-    for p in points:
-        q = goes_to[p]
+    for p, q in pairs:
         if groups.find(p) == groups.find(q):
             continue
         groups.join(p, q)
-        legs = route(p, q)
-        out += _fewer_over(bodies, legs, route(p, q, False), p, q) if len(legs) == 2 else legs
+        out += _link_route(bodies, p, q)
     return out
+
+
+def _link_route(bodies: list[tuple[GridPoint, ...]], p: GridPoint, q: GridPoint) -> list[Wire]:
+    """The wires of a link from ``p`` to ``q``: the bend over fewer of ``bodies``, or where both
+    bends run over one (two parts turned together can leave a body on each), a route with two
+    bends through the middle line between them, if that runs over fewer."""
+    legs = route(p, q)
+    if len(legs) < 2:
+        return legs
+    legs = _fewer_over(bodies, legs, route(p, q, False), p, q)
+    if not _run_over(bodies, legs, p, q):
+        return legs
+    (px, py), (qx, qy) = p, q
+    mx, my = (px + qx) // 2, (py + qy) // 2
+    detours = [[Wire(px, py, mx, py), Wire(mx, py, mx, qy), Wire(mx, qy, qx, qy)]] if mx not in (px, qx) else []
+    if my not in (py, qy):
+        detours.append([Wire(px, py, px, my), Wire(px, my, qx, my), Wire(qx, my, qx, qy)])
+    return min([legs, *detours], key=lambda legs: _run_over(bodies, legs, p, q))  # the first of the fewest
 
 
 def _with_links(followed: "FollowedWires", extra: list[Wire]) -> "FollowedWires":
@@ -553,25 +567,31 @@ def wires_edit(sketch: Sketch, wires: Iterable[Wire]) -> Edit:
 
 def rotate_edit(sketch: Sketch, names: Iterable[str], *, mirror: bool = False) -> Edit:
     """Turn (or mirror) the named parts about their middles; wires on their terminals follow,
-    and what a turned terminal touched directly stays joined to it by a new wire (``_links``)."""
+    and what a turned terminal touched directly (a part that stays, the middle of a wire, or
+    another turned part) stays joined to it by a new wire (``_links``)."""
     names = list(names)
-    news, goes_to = [], {}
+    news = []
+    went: dict[GridPoint, list[GridPoint]] = defaultdict(list)  # a point: where each turned terminal on it went
     for n in names:
         old = sketch.part(n)
         new = rotate_target(old, mirror=mirror)
         news.append((n, new))
         for a, b in zip(old.terminals(), new.terminals()):
-            if a != b:
-                goes_to[a] = b
+            went[a].append(b)
+    # wires on a point follow its first terminal that moved, unless a turned terminal stays there
+    goes_to = {a: next(b for b in bs if b != a) for a, bs in went.items() if a not in bs}
     edit = change_edit(sketch, news)
     before = tuple(sketch.wires)
     turned = [new.terminal_points for _, new in news]
     followed = follow_points(before, goes_to, bodies=turned)
     turning = set(names)
     staying = {t for p in sketch.parts if p.name not in turning for t in p.terminal_points}
-    joins = _contacts(set(goes_to), set(goes_to), staying, before, set())
-    if joins:
-        followed = _with_links(followed, _links(joins, goes_to, turned, followed, staying))
+    pairs = [(a, goes_to[a]) for a in _contacts(set(goes_to), set(goes_to), staying, before, set())]
+    for a, bs in went.items():  # turned terminals that met at a point stay joined to where its wires went
+        anchor = goes_to.get(a, a)
+        pairs += [(anchor, b) for b in dict.fromkeys(bs) if b != anchor]
+    if pairs:
+        followed = _with_links(followed, _links(pairs, turned, followed, staying))
     return Edit(edit.parts, before, followed)
 
 
