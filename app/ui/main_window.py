@@ -399,8 +399,7 @@ class MainWindow(QMainWindow):
         a = self.tool_actions.get(mode)
         if a is not None and not a.isChecked():
             a.setChecked(True)
-        hints = {SELECT: "Click or drag to select; drag or arrows move (Alt: off what it touches); "
-                         "Tab steps through parts.",
+        hints = {SELECT: "Drag or arrows move (Alt: off what it touches); Tab: next part.",
                  WIRE: "Click or press Enter at each corner; Space swaps the bend; Esc ends the wire."}
         hint = hints.get(mode, f"Placing a {KINDS[mode].title.lower()}: click or press Enter; "
                                "Space turns it, F mirrors it, Esc stops." if mode in KINDS else "")
