@@ -20,6 +20,7 @@ from .editor import FRAGMENT_MIME, Editor
 from .bench_tools import BenchTools
 from .docks import add_dock
 from .hand_analysis import HandAnalysis
+from .heap import RestCollector
 from .help_dialog import KeysDialog, show_about
 from .icons import tool_icon
 from .parts_bar import PartsBar
@@ -121,6 +122,9 @@ class MainWindow(QMainWindow):
         self.view.notice.connect(self.hint)
         self.view.pressed.connect(self._dismiss_inline)
         self.view.pointerMoved.connect(lambda x, y: self.where.setText(f"x {x}  y {y}"))
+        self.rest = RestCollector(self)  # Python's full collections wait for a rest in the drawing
+        self.view.pointerMoved.connect(self.rest.poke)
+        self.view.pressed.connect(self.rest.poke)
         self.readings.selectionModel().selectionChanged.connect(self._table_selection_changed)
         self.part_panel.refused.connect(lambda m: self.hint("Not accepted: " + m, 6000))
         self.set_document(Sketch(), None)
@@ -334,6 +338,7 @@ class MainWindow(QMainWindow):
         return not self.stack.isClean()
 
     def _document_changed(self) -> None:
+        self.rest.poke()
         self.readings_model.set_parts(self.sketch)
         self.solver.request()
         self.hand.document_changed()
@@ -641,6 +646,7 @@ class MainWindow(QMainWindow):
         self.settings.setValue("geometry", self.saveGeometry())
         self.settings.setValue("window_state", self.saveState())
         self.solver.shutdown()
+        self.rest.stop()
         event.accept()
         self.closed.emit()
 
