@@ -210,3 +210,7 @@ def test_every_tool_of_the_palette_is_in_sight_in_a_short_window_and_a_tall_one(
         shown = [a.text() for a in tools if bar.widgetForAction(a).isVisible()]
         assert shown == [a.text() for a in tools], height
         assert all(bar.rect().contains(bar.widgetForAction(a).geometry()) for a in tools), height
+        # one column of icons: every button has the same left edge and width (a narrower one
+        # is centred by the bar's layout, its icon out of line with the others')
+        edges = {(bar.widgetForAction(a).x(), bar.widgetForAction(a).width()) for a in tools}
+        assert len(edges) == 1, (height, edges)

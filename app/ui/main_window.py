@@ -10,7 +10,7 @@ from pathlib import Path
 from PySide6.QtCore import QEvent, QItemSelection, QItemSelectionModel, QSettings, Qt, QTimer, Signal
 from PySide6.QtGui import QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QUndoStack
 from PySide6.QtWidgets import (QApplication, QFileDialog, QLabel, QMainWindow,
-                               QMessageBox, QSizePolicy, QToolButton, QVBoxLayout, QWidget)
+                               QMessageBox, QSizePolicy, QVBoxLayout, QWidget)
 
 from ..sketch.fileio import SaveError, SketchFileError, load_sketch, save_sketch
 from ..sketch.kinds import KINDS
@@ -199,13 +199,11 @@ class MainWindow(QMainWindow):
         bar.setObjectName("parts")
         for tool, _, _ in PALETTE:
             bar.addAction(self.tool_actions[tool])
-            button = bar.widgetForAction(self.tool_actions[tool])
-            if isinstance(button, QToolButton):
-                button.setMinimumWidth(86)
             if tool == WIRE:
                 bar.addSeparator()
             if tool == "ground":  # the next are the bench parts
                 bar.addSeparator()
+        bar.even_widths()
         self.palette_bar = bar
         self.addToolBar(Qt.ToolBarArea.LeftToolBarArea, bar)
 
