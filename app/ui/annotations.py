@@ -31,6 +31,7 @@ LAYERS = {
     "drops": "Voltage drops",
     "potentials": "Node potentials",
     "loops": "Loop currents",
+    "descriptions": "Part descriptions",
 }
 
 _FM: QFontMetricsF | None = None

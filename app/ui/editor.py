@@ -9,11 +9,12 @@ from __future__ import annotations
 import itertools
 import json
 import re
+import unicodedata
 from dataclasses import asdict, replace
 
 from PySide6.QtGui import QUndoStack
 
-from ..sketch.fileio import NAME_PATTERN
+from ..sketch.fileio import LABEL_MAX, NAME_PATTERN
 from ..sketch.kinds import KINDS, kind_spec
 from ..sketch.model import PlacedPart, Sketch, Wire
 from ..units import format_value
@@ -216,6 +217,21 @@ class Editor:
         part = self.sketch.part(name)
         self.push(change_edit(self.sketch, [(name, replace(part, name=new))]), f"Rename {name} to {new}")
         self.scene.select([new])
+
+    def describe(self, name: str, text: str) -> None:
+        """Say what part ``name`` is ('drive motor', 'tail lamp'): its description, shown under
+        its value; spaces and line breaks run together, an empty text clears it. Raises
+        ValueError with a message if the text cannot be kept."""
+        text = " ".join(text.split())
+        if len(text) > LABEL_MAX:
+            raise ValueError(f"A description is at most {LABEL_MAX} characters (this one has {len(text)}), "
+                             "so that the sketch can be saved.")
+        if any(unicodedata.category(c) == "Cc" for c in text):
+            raise ValueError("A description cannot hold control characters.")
+        part = self.sketch.part(name)
+        if text != part.label:
+            self.push(change_edit(self.sketch, [(name, replace(part, label=text))]),
+                      f"Describe {name}" if text else f"Clear the description of {name}")
 
     # -- clipboard -------------------------------------------------------------------
     def fragment(self) -> str:

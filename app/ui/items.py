@@ -18,7 +18,7 @@ from PySide6.QtWidgets import QGraphicsItem, QGraphicsScene, QStyle, QStyleOptio
 from ..sketch.model import PlacedPart, Wire
 from .stamps import PHASES, anchors, copies, picture
 from .symbols import IEC, body_centre, paint_part, symbol_outline
-from .theme import GRID, current_theme, label_font
+from .theme import GRID, current_theme, description_font, label_font
 from .valuetext import value_line
 
 __all__ = ["too_small", "OnPaper", "paint_on_paper", "PartItem", "WireItem", "JunctionLayer", "LooseEnd",
@@ -176,14 +176,18 @@ class PartItem(OnPaper):
     a part is being placed: it paints itself, above everything.
     """
 
-    def __init__(self, part: PlacedPart, style: str = IEC, ghost: bool = False) -> None:
+    DESCRIPTION_MAX = 28  # characters of a description shown on the drawing (the rest: "…", all in the tooltip)
+
+    def __init__(self, part: PlacedPart, style: str = IEC, ghost: bool = False, described: bool = True) -> None:
         super().__init__(on_paper=not ghost)
         self.style = style
         self.ghost = ghost
         self.flagged = False
         self.side = -1
         self.part = part
+        self.described = described  # the part's description (``label``) is shown under its value
         self._fm = QFontMetricsF(label_font())
+        self._fm_description = QFontMetricsF(description_font())
         if not ghost:
             self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemIsSelectable, True)
         self.setZValue(Z_TOOL if ghost else Z_PART)
@@ -221,15 +225,33 @@ class PartItem(OnPaper):
                 if relayout:
                     relayout()
 
+    def set_described(self, on: bool) -> None:
+        """Show the part's description on the drawing, or not (the View menu's layer)."""
+        if on != self.described:
+            was = self.sceneBoundingRect()
+            self.prepareGeometryChange()
+            self.described = on
+            self._layout()
+            self.repaper(was)
+            for child in self.childItems():
+                relayout = getattr(child, "relayout", None)
+                if relayout:
+                    relayout()
+
     def line_rect(self, k: int, width: float) -> QRectF:
-        """Where text line ``k`` goes (0 = designator, then value, current, drop) for ``width``."""
+        """Where text line ``k`` goes (0 = designator, then value, current, drop) for ``width``;
+        a description shown takes the row after the value, and the marks' rows move on by one."""
+        row = max(k - 1, 0) if self.horizontal else k  # across, designator and value share the first row
+        return self._row_rect(row + self._extra if k >= 2 else row, width)
+
+    def _row_rect(self, row: int, width: float) -> QRectF:
+        """Row ``row`` of the part's text (rows run away from the body across, downward upright)."""
         h = self._fm.height()
         c, out = self.centre, self.outline
         if self.horizontal:
-            k = max(k - 1, 0)  # designator and value share the first line
-            y = out.bottom() - 2 + k * h if self.side > 0 else out.top() + 2 - (k + 1) * h
+            y = out.bottom() - 2 + row * h if self.side > 0 else out.top() + 2 - (row + 1) * h
             return QRectF(c.x() - width / 2, y, width, h)
-        y = c.y() - 2 * h + k * h
+        y = c.y() - (2 + self._extra / 2) * h + row * h  # the rows centred on the body
         x = out.right() + 2 if self.side > 0 else out.left() - 2 - width
         return QRectF(x, y, width, h)
 
@@ -261,6 +283,10 @@ class PartItem(OnPaper):
             self.lines = [f"{p.name}  {value_text(p)}"]
         else:
             self.lines = [p.name, value_text(p)]
+        description = shown_description(p.label) if self.described and self.lines else ""
+        self._extra = 1 if description else 0  # rows the description takes
+        if description:
+            self.lines.append(description)
         self.setToolTip(f"{p.name}: {p.label}" if p.label else p.name)
         self.label_rect = self._label_rect()
         rect = self.outline.united(self.label_rect) if self.lines else QRectF(self.outline)
@@ -270,9 +296,9 @@ class PartItem(OnPaper):
     def _label_rect(self) -> QRectF:
         if not self.lines:
             return QRectF()
-        w = max(self._fm.horizontalAdvance(s) for s in self.lines) + 2
-        r = self.line_rect(0, w)
-        return r.united(self.line_rect(len(self.lines) - 1, w))
+        fms = [self._fm] * (len(self.lines) - self._extra) + [self._fm_description] * self._extra
+        w = max(fm.horizontalAdvance(s) for fm, s in zip(fms, self.lines)) + 2
+        return self._row_rect(0, w).united(self._row_rect(len(self.lines) - 1, w))
 
     def cover_boxes(self) -> list[Box]:
         """What marks placed nearby should not hide: the symbol (lightly) and its text."""
@@ -333,9 +359,19 @@ class PartItem(OnPaper):
             align = (Qt.AlignmentFlag.AlignHCenter if self.horizontal else
                      Qt.AlignmentFlag.AlignLeft if self.side > 0 else Qt.AlignmentFlag.AlignRight)
             for k, line in enumerate(self.lines):
+                if self._extra and k == len(self.lines) - 1:
+                    painter.setFont(description_font())
                 painter.setPen(colour if k == 0 else (th.ghost if self.ghost else th.label))
                 lr = QRectF(r.left(), r.top() + k * fm.height(), r.width(), fm.height())
                 painter.drawText(lr, int(align | Qt.AlignmentFlag.AlignVCenter), line)
+
+
+def shown_description(label: str) -> str:
+    """A part's description as the drawing shows it: on one line, cut to
+    ``PartItem.DESCRIPTION_MAX`` characters with an ellipsis (the whole of it is in the tooltip)."""
+    text = " ".join(label.split())
+    most = PartItem.DESCRIPTION_MAX
+    return text if len(text) <= most else text[:most - 1].rstrip() + "…"
 
 
 def _paint_warning_sign(p: QPainter, at: QPointF, colour: QColor) -> None:

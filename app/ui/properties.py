@@ -17,6 +17,7 @@ from PySide6.QtWidgets import (QCheckBox, QComboBox, QFormLayout, QFrame, QHBoxL
 from ..sketch.bench_parts import (CELL_PRESETS, DROP_LIMIT_GENERAL, DROP_LIMIT_SAFETY, POWER_RATING_CHOICES,
                                   apply_cell_preset, awg_to_mm2, cable_resistance, lamp_hot_resistance,
                                   parse_awg)
+from ..sketch.fileio import LABEL_MAX
 from ..sketch.kinds import FLAG_LABELS, ValueField, kind_spec
 from ..units import format_value
 from .editor import Editor
@@ -177,6 +178,14 @@ class PartPanel(QWidget):
             des.editingFinished.connect(lambda e=des: self._rename(e.text()))
             self.form.addRow("Designator", des)
             self._fields["designator"] = des
+            about = QLineEdit(part.label)
+            about.setObjectName("description")
+            about.setPlaceholderText("what it is: drive motor, tail lamp")
+            about.setMaxLength(LABEL_MAX)
+            about.setToolTip("Shown under the part's value on the drawing (View ▸ Part descriptions)")
+            about.editingFinished.connect(lambda e=about: self._describe(e.text()))
+            self.form.addRow("Description", about)
+            self._fields["description"] = about
         for c in spec.choices:
             if c.key == "preset":
                 self._add_choice(c, part)
@@ -255,6 +264,9 @@ class PartPanel(QWidget):
         des = self._fields.get("designator")
         if des is not None and not (keep_typing and des.hasFocus()):
             des.setText(part.name)
+        about = self._fields.get("description")
+        if about is not None and not (keep_typing and about.hasFocus()):
+            about.setText(part.label)
         for key, combo in self._combos.items():
             combo.blockSignals(True)
             if key == "power_rating":
@@ -298,7 +310,7 @@ class PartPanel(QWidget):
         return ""
 
     def field(self, key: str) -> QLineEdit:
-        """The line edit of value ``key`` (or ``"designator"``)."""
+        """The line edit of value ``key`` (or ``"designator"``, ``"description"``)."""
         return self._fields[key]
 
     def combo(self, key: str) -> QComboBox:
@@ -322,6 +334,15 @@ class PartPanel(QWidget):
         except ValueError as e:
             self._fields["designator"].setText(self.name)
             self._refuse(str(e))
+
+    def _describe(self, text: str) -> None:
+        if not (self.editor and self.name):
+            return
+        try:
+            self.editor.describe(self.name, text)
+        except ValueError as e:
+            self._refuse(str(e))
+        self._fields["description"].setText(self.editor.sketch.part(self.name).label)  # as kept
 
     def _apply(self, f, edit: QLineEdit) -> None:
         if not (self.editor and self.name):

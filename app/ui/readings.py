@@ -58,6 +58,7 @@ class ReadingsModel(QAbstractTableModel):
         self._row_of: dict[str, int] = {}
         self._drawn: list[str] = []  # the names in document order, as last seen
         self._shown: dict[int, tuple[str, str, str]] = {}  # row -> its value texts as handed out, still current
+        self.descriptions: dict[str, str] = {}  # part name -> its description, for the Part column's tooltip
 
     def set_parts(self, sketch: Sketch) -> None:
         """Follow the document's parts (ground symbols are left out).
@@ -65,6 +66,7 @@ class ReadingsModel(QAbstractTableModel):
         The rows are sorted again only when the set of names changed (a move or a new
         value leaves them as they are).
         """
+        self.descriptions = {p.name: p.label for p in sketch.parts if p.label}
         drawn = [p.name for p in sketch.parts if p.kind != "ground"]
         if drawn == self._drawn:
             return
@@ -178,6 +180,10 @@ class ReadingsModel(QAbstractTableModel):
             return _RIGHT if column > 0 else None
         if role != _TIP:
             return None
+        if column == 0:
+            name = self.names[index.row()]
+            about = self.descriptions.get(name)
+            return f"{name}: {about}" if about else None
         if column == 1:
             return "Current through the part from its first terminal to its second"
         if column == 3:

@@ -49,7 +49,7 @@ class SketchScene(QGraphicsScene):
         self._note = FaultNote()
         self._note.setVisible(False)
         self.addItem(self._note)
-        self.layers = {"currents": True, "drops": True, "potentials": True, "loops": True}
+        self.layers = {"currents": True, "drops": True, "potentials": True, "loops": True, "descriptions": True}
         self._batch = 0
         self._dirty = False
         self._flagged: set[str] = set()
@@ -91,7 +91,7 @@ class SketchScene(QGraphicsScene):
         self.documentChanged.emit()
 
     def _new_part_item(self, part) -> PartItem:
-        item = PartItem(part, self.style)
+        item = PartItem(part, self.style, described=self.layers["descriptions"])
         if part.kind != "ground":
             item.current_mark = CurrentMark(item, self._readings)
             item.drop_mark = DropMark(item, self._readings)
@@ -264,6 +264,9 @@ class SketchScene(QGraphicsScene):
         elif layer == "loops":
             for t in self._loops:
                 t.set_shown(on and t.active)
+        elif layer == "descriptions":
+            for item in self.part_items.values():
+                item.set_described(on)
 
     # -- connections and results -----------------------------------------------
     def _pool(self, pool: list, make, n: int) -> list:

@@ -11,7 +11,7 @@ from dataclasses import dataclass
 from PySide6.QtGui import QColor, QFont, QGuiApplication, QPalette
 
 __all__ = ["Theme", "LIGHT", "DARK", "current_theme", "set_theme", "use_scheme", "window_palette", "GRID",
-           "label_font", "small_font", "REFUSAL", "style_refusal"]
+           "label_font", "small_font", "description_font", "REFUSAL", "style_refusal"]
 
 GRID = 20.0  # scene units per grid step
 
@@ -162,6 +162,19 @@ def label_font(pixels: int = 11) -> QFont:
 def small_font() -> QFont:
     """The font of annotations (currents, drops, potentials)."""
     return label_font(10)
+
+
+_DESCRIPTION: QFont | None = None
+
+
+def description_font() -> QFont:
+    """The font of a part's description on the drawing: the label font in italic, so it
+    reads as words about the part, not as one of its values."""
+    global _DESCRIPTION
+    if _DESCRIPTION is None:
+        _DESCRIPTION = QFont(label_font())
+        _DESCRIPTION.setItalic(True)
+    return _DESCRIPTION
 
 
 REFUSAL = "refusal"  # the object name of labels that say why an input was refused
