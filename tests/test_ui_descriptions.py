@@ -12,7 +12,7 @@ from app.sketch.fileio import LABEL_MAX, load_sketch  # noqa: E402
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
 from app.ui.edits import add_parts_edit  # noqa: E402
 from app.ui.items import PartItem, shown_description  # noqa: E402
-from ui_support import open_window  # noqa: E402
+from ui_support import open_window, type_into  # noqa: E402
 
 
 def loop() -> Sketch:
@@ -24,13 +24,6 @@ def loop() -> Sketch:
     s.add_wire(Wire(0, 4, 4, 4))
     s.add_part(PlacedPart("ground", "GND1", 0, 4))
     return s
-
-
-def type_into(qtbot, edit, text: str) -> None:
-    edit.setFocus()
-    edit.selectAll()
-    qtbot.keyClicks(edit, text)
-    qtbot.keyClick(edit, Qt.Key.Key_Return)
 
 
 def text_rows(item: PartItem) -> list[QRectF]:

@@ -9,7 +9,7 @@ from PySide6.QtCore import QCoreApplication, QPoint, QPointF, Qt  # noqa: E402
 
 from app.sketch.bench_parts import CELL_PRESETS  # noqa: E402
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
-from ui_support import open_window  # noqa: E402
+from ui_support import open_window, type_into  # noqa: E402
 
 
 def bench() -> Sketch:
@@ -38,13 +38,6 @@ def choose(qtbot, combo, data) -> None:
     assert target >= 0
     while combo.currentIndex() != target:
         qtbot.keyClick(combo, Qt.Key.Key_Down if combo.currentIndex() < target else Qt.Key.Key_Up)
-
-
-def type_into(qtbot, edit, text: str) -> None:
-    edit.setFocus()
-    edit.selectAll()
-    qtbot.keyClicks(edit, text)
-    qtbot.keyClick(edit, Qt.Key.Key_Return)
 
 
 def test_a_preset_fills_the_cell_and_undo_restores_it(qtbot, win):

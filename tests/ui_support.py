@@ -5,7 +5,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from PySide6.QtCore import QPointF, QSettings
+from PySide6.QtCore import QPointF, QSettings, Qt
 from PySide6.QtGui import QGuiApplication, QImage
 from PySide6.QtWidgets import QApplication
 
@@ -48,6 +48,14 @@ def open_window(qtbot, tmp_path: Path, sketch: Sketch | Path | None = None, *, s
     w.view.resetTransform()
     w.view.centerOn(QPointF(*centre))
     return w
+
+
+def type_into(qtbot, edit, text: str) -> None:
+    """Type ``text`` over a line edit's contents by keys, as a person would, and press Enter."""
+    edit.setFocus()
+    edit.selectAll()
+    qtbot.keyClicks(edit, text)
+    qtbot.keyClick(edit, Qt.Key.Key_Return)
 
 
 def painted_canvas(win: MainWindow) -> QImage:

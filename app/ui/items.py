@@ -215,28 +215,25 @@ class PartItem(OnPaper):
     def set_side(self, side: int) -> None:
         """Put the label and marks above/left (-1) or below/right (+1) of the body."""
         if side != self.side:
-            was = self.sceneBoundingRect()
-            self.prepareGeometryChange()
-            self.side = side
-            self._layout()
-            self.repaper(was)
-            for child in self.childItems():
-                relayout = getattr(child, "relayout", None)
-                if relayout:
-                    relayout()
+            self._relayout_with(side=side)
 
     def set_described(self, on: bool) -> None:
         """Show the part's description on the drawing, or not (the View menu's layer)."""
         if on != self.described:
-            was = self.sceneBoundingRect()
-            self.prepareGeometryChange()
-            self.described = on
-            self._layout()
-            self.repaper(was)
-            for child in self.childItems():
-                relayout = getattr(child, "relayout", None)
-                if relayout:
-                    relayout()
+            self._relayout_with(described=on)
+
+    def _relayout_with(self, **attrs) -> None:
+        """Set ``attrs`` that move the part's text, lay it out again with its marks, and repaint."""
+        was = self.sceneBoundingRect()
+        self.prepareGeometryChange()
+        for name, value in attrs.items():
+            setattr(self, name, value)
+        self._layout()
+        self.repaper(was)
+        for child in self.childItems():
+            relayout = getattr(child, "relayout", None)
+            if relayout:
+                relayout()
 
     def line_rect(self, k: int, width: float) -> QRectF:
         """Where text line ``k`` goes (0 = designator, then value, current, drop) for ``width``;
