@@ -117,6 +117,8 @@ def test_descriptions_that_cannot_be_kept_are_refused_in_words(qtbot, tmp_path):
         win.editor.describe("R1", "x" * (LABEL_MAX + 1))
     with pytest.raises(ValueError, match="control characters"):
         win.editor.describe("R1", "lamp\x07")
+    with pytest.raises(ValueError, match="broken character"):
+        win.editor.describe("R1", "lamp\ud800")  # a lone surrogate: the file loader refuses it too
     assert win.stack.count() == depth and win.sketch.part("R1").label == ""
     win.editor.describe("R1", "tail\tlamp\n")  # pasted with a tab and a line break: one line
     assert win.sketch.part("R1").label == "tail lamp"

@@ -30,7 +30,7 @@ from .model import CHECK_KINDS, ROTATIONS, BranchTag, PlacedPart, SavedCheck, Sk
 __all__ = [
     "SketchFileError", "SaveError", "backup_path", "save_sketch", "load_sketch", "dumps_sketch", "loads_sketch",
     "FORMAT_TAG", "VERSION", "MAX_BYTES", "MAX_DEPTH", "GRID_LIMIT", "NAME_PATTERN", "LABEL_MAX",
-    "CURRENT_NAME_PATTERN", "CHECK_MAX", "MAX_CHECKS",
+    "text_problem", "CURRENT_NAME_PATTERN", "CHECK_MAX", "MAX_CHECKS",
 ]
 
 FORMAT_TAG = "loopwright-sketch"
@@ -205,16 +205,25 @@ def _bool(value: Any, path: str) -> bool:
     return value
 
 
+def text_problem(text: str, limit: int) -> str | None:
+    """What keeps ``text`` out of a sketch file, in words ("must be at most 200 characters"),
+    or None when it can be kept (a label, a typed check)."""
+    if len(text) > limit:
+        return f"must be at most {limit} characters"
+    categories = {unicodedata.category(c) for c in text}
+    if "Cc" in categories:
+        return "must not hold control characters"
+    if "Cs" in categories:
+        return "holds a broken character (a lone surrogate)"
+    return None
+
+
 def _text(value: Any, path: str, limit: int) -> str:
     if not isinstance(value, str):
         raise _Bad(path, "must be text")
-    if len(value) > limit:
-        raise _Bad(path, f"must be at most {limit} characters")
-    categories = {unicodedata.category(c) for c in value}
-    if "Cc" in categories:
-        raise _Bad(path, "must not hold control characters")
-    if "Cs" in categories:
-        raise _Bad(path, "holds a broken character (a lone surrogate)")
+    problem = text_problem(value, limit)
+    if problem:
+        raise _Bad(path, problem)
     return value
 
 

@@ -9,12 +9,11 @@ from __future__ import annotations
 import itertools
 import json
 import re
-import unicodedata
 from dataclasses import asdict, replace
 
 from PySide6.QtGui import QUndoStack
 
-from ..sketch.fileio import LABEL_MAX, NAME_PATTERN
+from ..sketch.fileio import LABEL_MAX, NAME_PATTERN, text_problem
 from ..sketch.kinds import KINDS, kind_spec
 from ..sketch.model import PlacedPart, Sketch, Wire
 from ..units import format_value
@@ -223,11 +222,9 @@ class Editor:
         its value; spaces and line breaks run together, an empty text clears it. Raises
         ValueError with a message if the text cannot be kept."""
         text = " ".join(text.split())
-        if len(text) > LABEL_MAX:
-            raise ValueError(f"A description is at most {LABEL_MAX} characters (this one has {len(text)}), "
-                             "so that the sketch can be saved.")
-        if any(unicodedata.category(c) == "Cc" for c in text):
-            raise ValueError("A description cannot hold control characters.")
+        problem = text_problem(text, LABEL_MAX)  # the file's own rule for a label
+        if problem:
+            raise ValueError(f"A description {problem}, so that the sketch can be saved.")
         part = self.sketch.part(name)
         if text != part.label:
             self.push(change_edit(self.sketch, [(name, replace(part, label=text))]),

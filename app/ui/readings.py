@@ -58,7 +58,7 @@ class ReadingsModel(QAbstractTableModel):
         self._row_of: dict[str, int] = {}
         self._drawn: list[str] = []  # the names in document order, as last seen
         self._shown: dict[int, tuple[str, str, str]] = {}  # row -> its value texts as handed out, still current
-        self.descriptions: dict[str, str] = {}  # part name -> its description, for the Part column's tooltip
+        self._sketch: Sketch | None = None  # whose parts the rows show (their descriptions: the Part column's tooltip)
 
     def set_parts(self, sketch: Sketch) -> None:
         """Follow the document's parts (ground symbols are left out).
@@ -66,7 +66,7 @@ class ReadingsModel(QAbstractTableModel):
         The rows are sorted again only when the set of names changed (a move or a new
         value leaves them as they are).
         """
-        self.descriptions = {p.name: p.label for p in sketch.parts if p.label}
+        self._sketch = sketch
         drawn = [p.name for p in sketch.parts if p.kind != "ground"]
         if drawn == self._drawn:
             return
@@ -182,7 +182,7 @@ class ReadingsModel(QAbstractTableModel):
             return None
         if column == 0:
             name = self.names[index.row()]
-            about = self.descriptions.get(name)
+            about = self._sketch.part(name).label if self._sketch and self._sketch.has_part(name) else ""
             return f"{name}: {about}" if about else None
         if column == 1:
             return "Current through the part from its first terminal to its second"
