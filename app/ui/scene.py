@@ -482,8 +482,12 @@ class SketchScene(QGraphicsScene):
                 cost += w * h * weight
         return cost
 
-    REACH = 160.0  # farthest step (33) plus a mark's widest layout from its centre, with room
+    # a loop mark's offsets from its window's centre, nearest first; a large window's also
+    # reach towards its sides, where the parts' texts leave room (``LARGE``: its box's longer side)
     LOOP_STEPS = (0.0, 6.0, -6.0, 12.0, -12.0, 18.0, -18.0, 24.0, -24.0, 30.0, -30.0)
+    LOOP_STEPS_FAR = LOOP_STEPS + tuple(float(d) for k in (40, 50, 60, 75, 90) for d in (k, -k))
+    LARGE = 120.0
+    REACH = 220.0  # farthest step (90) plus a mark's widest layout from its centre, with room
     COMPACT_STEPS = tuple(float(d) for k in range(12) for d in ((0,) if k == 0 else (3 * k, -3 * k)))
 
     def _cover_boxes(self, area: QRectF, me, wires: bool = True) -> list[Box]:
@@ -501,19 +505,20 @@ class SketchScene(QGraphicsScene):
     _LAYOUTS = [(side, compact) for compact in (False, True) for side in LoopMark.SIDES]
 
     @classmethod
-    def _candidates(cls) -> np.ndarray:
+    def _candidates(cls, far: bool) -> np.ndarray:
         """Every candidate place as (layout, x step, y step, flat) in order of preference: full
         layout before compact, nearest offset first, sides in order. ``layout`` indexes
-        ``_LAYOUTS``; the steps index ``LOOP_STEPS`` or ``COMPACT_STEPS``; ``flat`` indexes
-        the layouts' [x step, y step] score tables laid end to end. The same for every mark,
-        so worked out once."""
-        cached = getattr(cls, "_candidates_cache", None)
+        ``_LAYOUTS``; the steps index ``_full_steps(far)`` or ``COMPACT_STEPS``; ``flat`` indexes
+        the layouts' [x step, y step] score tables laid end to end. The same for every mark
+        of a window size, so worked out once for each."""
+        cached = cls._candidates_cache.get(far)
         if cached is None:
-            sizes = [len(cls.COMPACT_STEPS if compact else cls.LOOP_STEPS) ** 2 for _, compact in cls._LAYOUTS]
+            full = cls._full_steps(far)
+            sizes = [len(cls.COMPACT_STEPS if compact else full) ** 2 for _, compact in cls._LAYOUTS]
             start = [sum(sizes[:n]) for n in range(len(sizes))]
             rows = []
             for compact in (False, True):
-                steps = cls.COMPACT_STEPS if compact else cls.LOOP_STEPS
+                steps = cls.COMPACT_STEPS if compact else full
                 pairs = sorted(((ix, iy) for ix in range(len(steps)) for iy in range(len(steps))),
                                key=lambda d: steps[d[0]] ** 2 + steps[d[1]] ** 2)
                 for k, (ix, iy) in enumerate(pairs):
@@ -521,9 +526,14 @@ class SketchScene(QGraphicsScene):
                         layout = cls._LAYOUTS.index((side, compact))
                         rows.append((compact, k, n, layout, ix, iy, start[layout] + ix * len(steps) + iy))
             rows.sort(key=lambda r: r[:3])
-            cached = np.array([r[3:] for r in rows])
-            cls._candidates_cache = cached
+            cached = cls._candidates_cache[far] = np.array([r[3:] for r in rows])
         return cached
+
+    _candidates_cache: dict[bool, np.ndarray] = {}
+
+    @classmethod
+    def _full_steps(cls, far: bool) -> tuple[float, ...]:
+        return cls.LOOP_STEPS_FAR if far else cls.LOOP_STEPS
 
     @staticmethod
     def _overlap(lo: np.ndarray, hi: np.ndarray, cover_lo: np.ndarray, cover_hi: np.ndarray) -> np.ndarray:
@@ -548,10 +558,12 @@ class SketchScene(QGraphicsScene):
         near = area.adjusted(-60, -60, 60, 60).intersected(reach)
         covers = np.array(self._cover_boxes(near, mark), dtype=float).reshape(-1, 5)
         box = area if outlined else None
+        far = max(area.width(), area.height()) > self.LARGE
+        full = self._full_steps(far)
         hx, hy = mark.home.x(), mark.home.y()
         costs, inside = [], []
         for compact in (False, True):  # the four sides of a layout at once (``_LAYOUTS`` order)
-            steps = np.array(self.COMPACT_STEPS if compact else self.LOOP_STEPS)
+            steps = np.array(self.COMPACT_STEPS if compact else full)
             rects = np.array([mark.rect_at(side, compact).getCoords() for side in LoopMark.SIDES])
             left, top = hx + steps + rects[:, 0:1], hy + steps + rects[:, 1:2]    # [side, step]
             right, bottom = hx + steps + rects[:, 2:3], hy + steps + rects[:, 3:4]
@@ -564,7 +576,7 @@ class SketchScene(QGraphicsScene):
                 in_x = (left >= box.left()) & (right <= box.right())
                 in_y = (top >= box.top()) & (bottom <= box.bottom())
                 inside.append((in_x[:, :, None] & in_y[:, None, :]).ravel())
-        cand = self._candidates()
+        cand = self._candidates(far)
         flat = cand[:, 3]
         cost = np.concatenate(costs)[flat]
         ok = np.concatenate(inside)[flat]
@@ -573,7 +585,7 @@ class SketchScene(QGraphicsScene):
         for i in allowed[np.lexsort((allowed, cost[allowed]))]:
             layout, ix, iy, _ = cand[i]
             side, compact = self._LAYOUTS[layout]
-            steps = self.COMPACT_STEPS if compact else self.LOOP_STEPS
+            steps = self.COMPACT_STEPS if compact else full
             at = QPointF(hx + steps[ix], hy + steps[iy])
             if outlined and not mark.outline.containsPoint(at, Qt.FillRule.OddEvenFill):
                 continue

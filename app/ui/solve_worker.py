@@ -13,6 +13,7 @@ import math
 from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass, field
 
+import networkx as nx
 from PySide6.QtCore import QObject, Signal
 
 from solver import CircuitError, Solution, solve
@@ -20,7 +21,7 @@ from solver import CircuitError, Solution, solve
 from ..assess import Caution
 from ..assess.return_path import explained
 from ..sketch.model import Sketch
-from ..sketch.netlist import Netlist, to_circuit
+from ..sketch.netlist import WIRE_PREFIX, Netlist, to_circuit
 from .bench_results import assess_result, detached
 from .heap import settle
 from ..units import format_value
@@ -61,32 +62,64 @@ def _grid(name: str) -> GridPoint:
     return int(x), int(y)
 
 
-def _loop_centre(loop, ends: dict[str, tuple[str, str]], pos: dict[str, tuple[float, float]],
-                 outline: list[tuple[float, float]] | None = None) -> tuple[float, float] | None:
-    """A point inside the loop's window: its area centroid, else the mean of its corners.
+class _Conductors:
+    """The drawn wires of a circuit as a graph of its points, built at the first question.
 
-    ``ends`` maps part names to their (first, second) points, ``pos`` points to grid positions;
-    the loop's corners are appended to ``outline`` when one is given.
+    The solver joins the points a wire links into one node, so a loop lists only the parts
+    it runs through; where one part's end and the next part's start are different points, the
+    loop runs along the wires between them (``route``), and its window is bounded by them.
     """
+
+    def __init__(self, circuit) -> None:
+        self._circuit = circuit
+        self._graph: nx.Graph | None = None
+
+    def route(self, a: str, b: str) -> list[str]:
+        """The points from ``a`` to ``b`` along the fewest wire pieces ([a, b] if none join them)."""
+        if self._graph is None:
+            self._graph = nx.Graph()
+            self._graph.add_edges_from((p.a, p.b) for p in self._circuit.parts if p.name.startswith(WIRE_PREFIX))
+        try:
+            return nx.shortest_path(self._graph, a, b)
+        except (nx.NodeNotFound, nx.NetworkXNoPath):  # joined otherwise (two ground symbols, say)
+            return [a, b]
+
+
+def _corners(loop, ends: dict[str, tuple[str, str]], pos: dict[str, tuple[float, float]],
+             wires: _Conductors) -> tuple[tuple[float, float], ...] | None:
+    """The corners of the loop's window in grid units: through its parts' ends and along the
+    wires between them, from the lowest corner (the same window gives the same corners
+    whichever branch the solver's loop starts from). None when it has no area to speak of."""
     pts: list[tuple[float, float]] = []
+    last: str | None = None
     for name, sign in loop.parts:
         a, b = ends[name] if sign > 0 else ends[name][::-1]
         if a not in pos or b not in pos:
             return None
-        for q in (pos[a], pos[b]):
+        way = [a, b] if last is None or last == a else wires.route(last, a)[1:] + [b]
+        for point in way:
+            q = pos.get(point)
+            if q is None:
+                return None
             if not pts or pts[-1] != q:
                 pts.append(q)
+        last = b
+    first_point = ends[loop.parts[0][0]][0 if loop.parts[0][1] > 0 else 1]
+    if last is not None and last != first_point:
+        for point in wires.route(last, first_point)[1:-1]:
+            if point in pos and pts[-1] != pos[point]:
+                pts.append(pos[point])
     if len(pts) > 1 and pts[0] == pts[-1]:
         pts.pop()
     if len(pts) < 3:
         return None
-    # start at the lowest corner: the same window gives the same corners and centre to the
-    # last bit whichever branch the solver's loop happens to start from
     first = pts.index(min(pts))
-    pts = pts[first:] + pts[:first]
-    if outline is not None:
-        outline.extend(pts)
-    pts.append(pts[0])
+    return tuple(pts[first:] + pts[:first])
+
+
+def _loop_centre(corners: tuple[tuple[float, float], ...]) -> tuple[float, float]:
+    """A point inside the window of ``corners``: its area centroid, else the mean of its corners."""
+    pts = list(corners) + [corners[0]]
     area = cx = cy = 0.0
     for (x0, y0), (x1, y1) in zip(pts, pts[1:]):
         cross = x0 * y1 - x1 * y0
@@ -97,29 +130,27 @@ def _loop_centre(loop, ends: dict[str, tuple[str, str]], pos: dict[str, tuple[fl
         c = (cx / (3 * area), cy / (3 * area))
         if _inside(c, pts):
             return c
-    n = len(pts) - 1
-    return sum(p[0] for p in pts[:n]) / n, sum(p[1] for p in pts[:n]) / n
+    n = len(corners)
+    return sum(p[0] for p in corners) / n, sum(p[1] for p in corners) / n
 
 
 _WINDOWS: dict[tuple, tuple[tuple[float, float] | None, list[tuple[float, float]]]] = {}
 _WINDOWS_KEPT = 4096
 
 
-def _window(loop, ends: dict[str, tuple[str, str]], pos: dict[str, tuple[float, float]]
+def _window(loop, ends: dict[str, tuple[str, str]], pos: dict[str, tuple[float, float]], wires: _Conductors
             ) -> tuple[tuple[float, float] | None, list[tuple[float, float]]]:
-    """``_loop_centre`` of ``loop`` and its corners, kept by the loop's parts and their end points.
-
-    The netlist names each point by its grid position (``netlist.point_name``), so the parts
-    with their signs and end names fix the window; most windows are the same from one solve
-    to the next. The outline list is shared between results: read it, never change it.
-    """
-    key = tuple((name, sign, ends.get(name)) for name, sign in loop.parts)
-    hit = _WINDOWS.get(key)
+    """``_loop_centre`` of ``loop``'s window and its corners, kept by the corners (most windows
+    are the same from one solve to the next). The outline list is shared between results:
+    read it, never change it."""
+    corners = _corners(loop, ends, pos, wires)
+    if corners is None:
+        return None, []
+    hit = _WINDOWS.get(corners)
     if hit is None:
         if len(_WINDOWS) >= _WINDOWS_KEPT:
             _WINDOWS.clear()
-        outline: list[tuple[float, float]] = []
-        hit = _WINDOWS[key] = (_loop_centre(loop, ends, pos, outline), outline)
+        hit = _WINDOWS[corners] = (_loop_centre(corners), list(corners))
     return hit
 
 
@@ -142,8 +173,8 @@ def _windows(loops: list, circuit) -> list[tuple[tuple[float, float] | None, lis
             if k:
                 _LAST_WINDOWS.insert(0, _LAST_WINDOWS.pop(k))
             return w
-    pos = circuit.positions
-    windows = [_window(loop, ends, pos) for loop in loops]
+    pos, wires = circuit.positions, _Conductors(circuit)
+    windows = [_window(loop, ends, pos, wires) for loop in loops]
     _LAST_WINDOWS.insert(0, (ends, members, windows))
     del _LAST_WINDOWS[_LAST_KEPT:]
     return windows
