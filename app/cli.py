@@ -43,7 +43,7 @@ class _FileProblem(Exception):
 
 
 def _solve_file(path: str):
-    """The solution of the sketch in ``path`` and its cautions (app/assess)."""
+    """The solution of the sketch in ``path``, its cautions (app/assess) and its parts' descriptions."""
     from .assess import assess
     from .sketch.netlist import to_circuit
     from .assess.return_path import explained
@@ -53,17 +53,17 @@ def _solve_file(path: str):
         sol = solve(net.circuit, ground=net.ground)
     except CircuitError as exc:
         raise CircuitError(*explained(exc, net.circuit, {p.name: p.kind for p in sketch.parts})) from None
-    return sol, assess(sketch, net, sol)
+    return sol, assess(sketch, net, sol), {p.name: p.label for p in sketch.parts if p.label}
 
 
 def cmd_solve(args: argparse.Namespace) -> int:
     from .report import solution_dict, solution_table
-    sol, cautions = _solve_file(args.file)
+    sol, cautions, descriptions = _solve_file(args.file)
     if args.json:
-        json.dump(solution_dict(sol, cautions), sys.stdout, indent=2, allow_nan=False)
+        json.dump(solution_dict(sol, cautions, descriptions), sys.stdout, indent=2, allow_nan=False)
         sys.stdout.write("\n")
     else:
-        print(solution_table(sol, title=args.file, cautions=cautions))
+        print(solution_table(sol, title=args.file, cautions=cautions, descriptions=descriptions))
     return EXIT_OK
 
 

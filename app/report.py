@@ -5,7 +5,7 @@ are left out; the person sees the parts they drew.
 """
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 
 from solver import Solution
 
@@ -23,15 +23,20 @@ def _shown(name: str) -> bool:
     return not name.startswith("~")
 
 
-def solution_dict(sol: Solution, cautions: Sequence[Caution] = ()) -> dict:
+def solution_dict(sol: Solution, cautions: Sequence[Caution] = (),
+                  descriptions: Mapping[str, str] | None = None) -> dict:
     """Parts, nodes, loops and warnings as JSON-ready data (SI base units).
 
-    ``warnings`` holds the solver's notes, then the cautions (see ``caution_dict``).
+    ``warnings`` holds the solver's notes, then the cautions (see ``caution_dict``);
+    a part with a description in ``descriptions`` (part name -> what it is) carries it.
     """
     parts = {
         name: {"current": sol.current(name), "voltage": sol.voltage(name), "power": sol.power(name)}
         for name in sol.parts if _shown(name)
     }
+    for name, text in (descriptions or {}).items():
+        if text and name in parts:
+            parts[name]["description"] = text
     labels = node_labels(sol)
     nodes = {name: {"potential": sol.potential(name), "points": points, "label": labels.get(name)}
              for name, points in sol.nodes.items()}
@@ -68,20 +73,36 @@ def _caution_lines(cautions: Sequence[Caution]) -> list[str]:
 # -- end of cautions ---------------------------------------------------------------
 
 
-def _table(header: list[str], rows: list[list[str]]) -> list[str]:
+def _table(header: list[str], rows: list[list[str]], texts: int = 1) -> list[str]:
+    """Aligned columns: figures to the right, the first column and the last ``texts - 1`` to the left."""
     widths = [max(len(h), *(len(r[i]) for r in rows)) if rows else len(h) for i, h in enumerate(header)]
-    line = lambda cells: "  ".join(c.rjust(w) if i else c.ljust(w) for i, (c, w) in enumerate(zip(cells, widths)))  # noqa: E731
+    left = {0, *range(len(header) - texts + 1, len(header))}
+    line = lambda cells: "  ".join(c.ljust(w) if i in left else c.rjust(w)  # noqa: E731
+                                   for i, (c, w) in enumerate(zip(cells, widths))).rstrip()
     return [line(header), line(["-" * w for w in widths])] + [line(r) for r in rows]
 
 
-def solution_table(sol: Solution, title: str = "", cautions: Sequence[Caution] = ()) -> str:
-    """A plain-text report: parts, node potentials, loop currents, warnings, cautions."""
+def solution_table(sol: Solution, title: str = "", cautions: Sequence[Caution] = (),
+                   descriptions: Mapping[str, str] | None = None) -> str:
+    """A plain-text report: parts, node potentials, loop currents, warnings, cautions.
+
+    ``descriptions`` (part name -> what it is) adds a last column to the parts' table
+    when any part shown has one."""
     out: list[str] = []
     if title:
         out += [title, ""]
+    names = [n for n in sol.parts if _shown(n)]
     rows = [[n, format_value(sol.current(n), "A"), format_value(sol.voltage(n), "V"),
-             format_value(sol.power(n), "W")] for n in sol.parts if _shown(n)]
-    out += _table(["Part", "Current", "Drop", "Power"], rows)
+             format_value(sol.power(n), "W")] for n in names]
+    header = ["Part", "Current", "Drop", "Power"]
+    described = descriptions or {}
+    if any(described.get(n) for n in names):
+        header.append("Description")
+        for n, row in zip(names, rows):
+            row.append(described.get(n, ""))
+        out += _table(header, rows, texts=2)
+    else:
+        out += _table(header, rows)
     ref = (f"relative to ground (node {sol.node_of(sol.ground)})" if sol.ground
            else "relative to each island's reference")
     out += ["", f"Node potentials, {ref} (n1, n2, … as in the equations):"]

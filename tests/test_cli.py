@@ -134,3 +134,27 @@ def test_node_labels_in_solve_are_the_ones_the_checker_reads(capsys):
     answers = ", ".join(f"V({label}) = {v!r}" for label, v in labelled.items())
     code, out, err = run(capsys, "check", demo, "--eq", answers)
     assert code == 0, out + err
+
+
+def test_solve_names_what_each_part_is(capsys, tmp_path):
+    """A part's description travels with its row, in the table and in JSON; a part without
+    one has none. 12 V over 100 Ω + 200 Ω in series: 40 mA (Ohm's law, by hand)."""
+    s = Sketch()
+    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 12.0}, label="bench supply"))
+    s.add_part(PlacedPart("resistor", "R1", 0, 0, 0, False, {"resistance": 100.0}, label="tail lamp"))
+    s.add_part(PlacedPart("resistor", "R2", 4, 0, 90, False, {"resistance": 200.0}))
+    s.add_wire(Wire(0, 4, 4, 4))
+    s.add_part(PlacedPart("ground", "GND1", 0, 4))
+    path = tmp_path / "lamp.lwsk"
+    save_sketch(s, path)
+    code, out, _ = run(capsys, "solve", str(path))
+    assert code == 0
+    rows = {line.split()[0]: line for line in out.splitlines() if line.startswith(("B1 ", "R1 ", "R2 "))}
+    assert "Description" in out
+    assert rows["R1"].split()[1:3] == ["40.0", "mA"] and rows["R1"].endswith("  tail lamp")
+    assert rows["B1"].endswith("bench supply") and rows["R2"].endswith("W")
+    code, out, _ = run(capsys, "solve", str(path), "--json")
+    parts = json.loads(out)["parts"]
+    assert parts["R1"]["description"] == "tail lamp" and parts["B1"]["description"] == "bench supply"
+    assert "description" not in parts["R2"]
+    assert parts["R1"]["current"] == pytest.approx(12.0 / 300.0, rel=1e-12)
