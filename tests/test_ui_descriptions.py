@@ -133,3 +133,31 @@ def test_a_part_placed_with_the_layer_off_shows_no_description(qtbot, tmp_path):
     part = PlacedPart("resistor", "R9", 8, 0, 90, False, {"resistance": 10.0}, label="spare")
     win.editor.push(add_parts_edit(win.sketch, [part]), "Add")
     assert win.scene.part_items["R9"].lines == ["R9", "10.0 Ω"]
+
+
+@pytest.mark.parametrize("demo", ["sensor_current_loop.lwsk", "bench_supply_fixture.lwsk"])
+def test_turning_descriptions_on_moves_the_marks_off_them(qapp, demo):
+    """Loop marks and potential tags keep their places from one edit to the next; placed
+    while descriptions were hidden, they must move off the descriptions once shown."""
+    from pathlib import Path
+
+    from app.ui.annotations import LoopMark, PotentialTag
+    from app.ui.scene import SketchScene
+    from app.ui.solve_worker import solve_sketch
+
+    sketch = load_sketch(Path(__file__).resolve().parents[1] / "demo_circuits" / demo)
+    scene = SketchScene(sketch)
+    scene.set_layer("descriptions", False)
+    scene.show_result(solve_sketch(sketch))
+    scene.settle_marks()
+    scene.set_layer("descriptions", True)
+    scene.settle_marks()
+    rows = [(item.part.name, r) for item in scene.part_items.values() if item.current_mark is not None
+            for r in text_rows(item)]
+    assert any(item.described and item.part.label for item in scene.part_items.values())
+    marks = [m for m in scene.items() if isinstance(m, (LoopMark, PotentialTag)) and m.isVisible()]
+    assert marks
+    for mark in marks:
+        rect = mark.sceneBoundingRect()
+        hidden = [name for name, r in rows if rect.intersects(r)]
+        assert not hidden, f"{type(mark).__name__} {mark.text} lies over a text of {hidden}"

@@ -267,6 +267,8 @@ class SketchScene(QGraphicsScene):
         elif layer == "descriptions":
             for item in self.part_items.values():
                 item.set_described(on)
+        if on and layer in ("currents", "drops", "descriptions") and self.solved:
+            self._place_clear_of_new_texts()
 
     # -- connections and results -----------------------------------------------
     def _pool(self, pool: list, make, n: int) -> list:
@@ -438,22 +440,35 @@ class SketchScene(QGraphicsScene):
         place hides something, it is not hung again on each edit): a tag keeps its place from
         one edit to the next, so without this a label laid out after the tag stays hidden under it."""
         names, self._new_parts = self._new_parts, set()
-        items = [self.part_items[n] for n in names if n in self.part_items]
-        if not items:
+        texts = self._part_texts(names)
+        if texts is None:
             return []
-        texts = []  # (left, top, right, bottom) of their labels and value texts
-        for item in items:
+        skip = {id(t) for t in placing}
+        tags = [t for t in self._tags if t.active and id(t) not in skip]
+        return [t for t in marks_meeting(tags, texts)
+                if self._tag_cost(t, t._corner) >= t.hides + COVER_TEXT]
+
+    def _part_texts(self, names) -> np.ndarray | None:
+        """(left, top, right, bottom) rows of the texts the parts ``names`` show: labels,
+        descriptions and value marks (None: no text)."""
+        texts = []
+        for item in (self.part_items[n] for n in names if n in self.part_items):
             boxes = list(item.cover_boxes())
             for mark in (item.current_mark, item.drop_mark):
                 if mark is not None and mark.isVisible():
                     boxes += mark.cover_boxes()
             texts += [b[:4] for b in boxes if b[4] >= COVER_TEXT]
-        skip = {id(t) for t in placing}
-        tags = [t for t in self._tags if t.active and id(t) not in skip]
-        if not texts:
-            return []
-        return [t for t in marks_meeting(tags, np.array(texts))
-                if self._tag_cost(t, t._corner) >= t.hides + COVER_TEXT]
+        return np.array(texts) if texts else None
+
+    def _place_clear_of_new_texts(self) -> None:
+        """A layer of the parts' texts came on: hang again the tags and place again the loop
+        marks now over them (both keep their places otherwise, and were placed without it)."""
+        self._new_parts |= self.part_items.keys()
+        jobs = [(self._place_tag, t, t.key) for t in self._tags_hiding_new_parts([])]
+        texts = self._part_texts(self.part_items)
+        if texts is not None:
+            jobs += [(self._place_loop, m, m.key) for m in marks_meeting([m for m in self._loops if m.active], texts)]
+        self._place(jobs)
 
     FAR_TAG = 4 * COVER_TEXT  # what hanging a tag farther out costs: as much as hiding 4 px² of text
 
