@@ -583,6 +583,7 @@ class ReadingLayer(QGraphicsItem):
         self._split_count = 0  # how often the marks were split into kept and changing ones
         self._changes = 0  # how often a kept mark changed: a picture of them made before is stale
         self._kept: dict[int, tuple[tuple, list]] = {}  # per view: (made for, (corner, picture) per group)
+        self._pictured: list[tuple[float, float, float, float]] = []  # the scene areas the kept pictures show
         self._wanted: set[int] = set()  # views repainted whole for many changed marks since their last pictures
 
     FEW = 150  # up to this many boxes in one hold are repainted each on its own, more as one box
@@ -592,8 +593,12 @@ class ReadingLayer(QGraphicsItem):
         key = id(mark)
         if self._held_marks is not None:
             self._held_marks[key] = mark
-        if key not in self._hot:
-            self._changes += 1
+        if key not in self._hot and self._pictured:
+            left, top, right, bottom = mark._scene_box
+            # a mark out of every kept picture's area leaves them as they are (a large sketch's
+            # marks out of sight, say)
+            if any(left <= r and right >= x and top <= b and bottom >= y for x, y, r, b in self._pictured):
+                self._changes += 1
 
     def repaint_mark(self, mark: QGraphicsItem, box: tuple[float, float, float, float]) -> None:
         """``mark`` changed (``touch``): paint its scene box (left, top, right, bottom) again,
@@ -643,6 +648,7 @@ class ReadingLayer(QGraphicsItem):
     def drop_pictures(self) -> None:
         """Forget the views' kept pictures (the next repaint draws every mark afresh)."""
         self._kept.clear()
+        self._pictured = []
 
     def _repaint(self, boxes: list[tuple[float, float, float, float]],
                  marks: dict[int, QGraphicsItem] | None = None) -> None:
@@ -694,7 +700,9 @@ class ReadingLayer(QGraphicsItem):
         from now on; the layer files it by place, so a repaint looks at the marks in sight only."""
         left, top, right, bottom = box.left(), box.top(), box.right(), box.bottom()
         mark._scene_box = (left, top, right, bottom)
-        if not self._bounds.contains(box):  # the layer's box only grows: a larger one costs nothing
+        # the layer's box only grows: a larger one costs nothing (an empty box, a mark with
+        # nothing to show, is never contained: it would repaint the whole layer each time)
+        if not box.isEmpty() and not self._bounds.contains(box):
             self.prepareGeometryChange()
             self._bounds = self._bounds.united(box)
         self._reach = max(self._reach[0], right - left), max(self._reach[1], bottom - top)
@@ -858,7 +866,8 @@ class ReadingLayer(QGraphicsItem):
             pictures.append((at, image))
         views = {id(v) for v in self.scene().views()}
         self._kept = {k: v for k, v in self._kept.items() if k in views}
-        self._kept[id(view)] = (made_for, pictures)
+        self._kept[id(view)] = (made_for, pictures, (r.left(), r.top(), r.right(), r.bottom()))
+        self._pictured = [v[2] for v in self._kept.values()]
         return pictures
 
     def _draw(self, painter: QPainter, areas: np.ndarray, looks: tuple, group: int, exact: bool,

@@ -38,6 +38,8 @@ class SketchScene(QGraphicsScene):
         self._axis: dict[str, tuple[bool, float]] = {}  # per part: horizontal, where its body lies
         self._middle: tuple[float, float] | None = None  # the middle of the drawing labels face away from
         self._marked: dict[str, tuple[PartItem, object]] = {}  # per part: the item and reading its marks show
+        self._owed: dict[str, tuple[PartItem, object]] = {}  # per part out of sight: the reading still to show
+        self._clear_in: dict[int, QRectF] = {}  # per view: an area no owed reading lies in (``lay_owed``)
         self.wire_items: list[WireItem] = []
         self._dots = JunctionLayer()  # paints every connection dot
         self.addItem(self._dots)
@@ -325,14 +327,22 @@ class SketchScene(QGraphicsScene):
         self._clear_fault()
         self.solved = True
         readable = self.marks_readable()
-        marked = self._marked
+        marked, owed = self._marked, self._owed
+        sight = self._names_in_sight() if len(self.part_items) >= self.LAY_IN_SIGHT_FROM else None
         for name, item in self.part_items.items():
             if item.current_mark is None:
                 continue
             r = readings.get(name)
             last = marked.get(name)
             if last is not None and last[0] is item and last[1] == r:
+                if owed:
+                    owed.pop(name, None)
                 continue
+            if sight is not None and name not in sight:
+                owed[name] = (item, r)
+                continue
+            if owed:
+                owed.pop(name, None)
             marked[name] = (item, r)
             item.current_mark.set_value(None if r is None else r[0], readable)
             item.drop_mark.set_value(None if r is None else r[1], readable)
@@ -388,7 +398,9 @@ class SketchScene(QGraphicsScene):
             self._place_timer.stop()
 
     def settle_marks(self) -> None:
-        """Place every mark still waiting for a place (before a picture is taken, say)."""
+        """Lay every owed reading and place every mark still waiting for a place (before a
+        picture is taken, say)."""
+        self.lay_owed(False)
         with self._readings.hold():
             self._place([], all_now=True)
 
@@ -427,6 +439,65 @@ class SketchScene(QGraphicsScene):
 
     PLACE_TAGS_UP_TO = 400
     PLACE_AFTER_MS = 60
+
+    LAY_IN_SIGHT_FROM = 400  # parts: from this many, a solution's marks out of sight are laid when they come in
+    SIGHT_MARGIN = 200.0  # how far out of a view a part's marks can reach into it
+
+    def _sight(self, view) -> QRectF:
+        """The scene area whose parts' marks ``view`` can show (empty: it shows them too small to draw)."""
+        if QStyleOptionGraphicsItem.levelOfDetailFromTransform(view.transform()) < TEXT_LOD:
+            return QRectF()
+        m = self.SIGHT_MARGIN
+        return view.mapToScene(view.viewport().rect()).boundingRect().adjusted(-m, -m, m, m)
+
+    def _names_in(self, areas: list[QRectF]) -> set[str]:
+        """The parts whose grid position lies in any of ``areas`` (the sight margin takes in their marks)."""
+        areas = [a for a in areas if not a.isEmpty()]
+        if not areas:
+            return set()
+        parts = self.sketch.parts
+        xy = np.array([(p.x, p.y) for p in parts], dtype=float).reshape(-1, 2) * GRID
+        inside = np.zeros(len(parts), dtype=bool)
+        for a in areas:
+            inside |= (xy[:, 0] >= a.left()) & (xy[:, 0] <= a.right()) & (xy[:, 1] >= a.top()) & (xy[:, 1] <= a.bottom())
+        return {parts[i].name for i in np.flatnonzero(inside).tolist()}
+
+    def _names_in_sight(self) -> set[str]:
+        """The parts whose marks some view can show; each view's area is noted as clear of owed readings.
+
+        On a large sketch most parts lie out of sight, and laying a solution's values on their
+        marks is most of the time a new solution costs the drawing: those wait (``_owed``) until
+        a view is painted showing them (``lay_owed``).
+        """
+        self._clear_in = {id(view): self._sight(view) for view in self.views()}
+        return self._names_in(list(self._clear_in.values()))
+
+    def lay_owed(self, view=None) -> None:
+        """Lay the owed readings of the parts ``view`` can show (every view's: None; all of them:
+        ``view`` False), before it paints them."""
+        if not self._owed:
+            return
+        if view is False:
+            names = set(self._owed)
+        else:
+            areas = []
+            for v in self.views() if view is None else (view,):
+                area = self._sight(v)
+                clear = self._clear_in.get(id(v))
+                if area.isEmpty() or (clear is not None and not clear.isEmpty() and clear.contains(area)):
+                    continue
+                self._clear_in[id(v)] = area
+                areas.append(area)
+            names = self._names_in(areas)
+        readable = self.marks_readable()
+        with self._readings.hold():
+            for name in names & self._owed.keys():
+                item, r = self._owed.pop(name)
+                if self.part_items.get(name) is not item:
+                    continue
+                self._marked[name] = (item, r)
+                item.current_mark.set_value(None if r is None else r[0], readable)
+                item.drop_mark.set_value(None if r is None else r[1], readable)
 
     def marks_readable(self) -> bool:
         """False when every view shows the drawing too small for marks to be drawn (``too_small``)."""
@@ -618,6 +689,7 @@ class SketchScene(QGraphicsScene):
     def _clear_results(self) -> None:
         self.solved = False
         self._marked = {}
+        self._owed.clear()
         for item in self.part_items.values():
             if item.current_mark is not None:
                 item.current_mark.set_value(None)

@@ -445,6 +445,9 @@ class CanvasView(QGraphicsView):
     exposed_region: QRegion | None = None  # while painting: the region being repainted (ReadingLayer reads it)
 
     def paintEvent(self, event: QPaintEvent) -> None:
+        scene = self.scene()
+        if scene is not None:
+            scene.lay_owed(self)  # readings of a large sketch's parts coming into sight
         self.exposed_region = event.region()
         try:
             super().paintEvent(event)
