@@ -13,7 +13,6 @@ from pathlib import Path
 os.environ.setdefault("QT_QPA_PLATFORM", "offscreen")
 
 import numpy as np  # noqa: E402
-from PySide6.QtCore import QPointF  # noqa: E402
 
 from app.ui.scene import SketchScene  # noqa: E402
 from app.units import format_value  # noqa: E402
