@@ -77,6 +77,18 @@ def test_the_worker_builds_the_netlist_and_solves_it(qtbot, threaded):
     assert not solver.busy
 
 
+def test_the_worker_reads_a_copy_later_edits_leave_alone():
+    """``Sketch.drawing``: what the worker solves is the sketch as it was when asked."""
+    sketch = series()
+    copy = sketch.drawing()
+    assert copy.parts == sketch.parts and copy.wires == sketch.wires
+    sketch.update_part("R1", values={"resistance": 999.0})
+    sketch.add_wire(Wire(0, 8, 4, 8))
+    assert copy.part("R1").values["resistance"] != 999.0 and len(copy.wires) == len(sketch.wires) - 1
+    copy.remove_part("R2")
+    assert sketch.has_part("R2")
+
+
 def test_edits_during_a_solve_end_in_the_newest_state(qtbot, threaded):
     sketch = series()
     solver = threaded(sketch)

@@ -23,7 +23,6 @@ from PySide6.QtWidgets import QApplication  # noqa: E402
 from app.sketch.fileio import load_sketch  # noqa: E402
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
 from app.sketch.netlist import to_circuit  # noqa: E402
-from app.ui.bench_results import detached  # noqa: E402
 from app.ui.edits import Edit, apply_edit, move_target, route, straighten  # noqa: E402
 from solver import solve  # noqa: E402
 
@@ -265,7 +264,7 @@ def test_moves_and_their_inverses_join_what_the_stretch_joins_and_leave_no_fold(
     steps += [(ns, -dx, -dy) for ns, dx, dy in reversed(steps)]
     folds_at_start = len(dead_folds(s))
     for ns, dx, dy in steps:
-        bare = detached(s)
+        bare = s.drawing()
         move(bare, ns, dx, dy, settle=False)
         move(s, ns, dx, dy)
         assert joined(s) == joined(bare)

@@ -222,6 +222,15 @@ class Sketch:
             n += 1
         return f"{prefix}{n}"
 
+    def drawing(self) -> "Sketch":
+        """A new sketch with this one's parts and wires, shared (they are immutable), in order;
+        no tags, checks or listeners. What a worker thread reads while edits go on here: it
+        takes two container copies, not a check and a change per part."""
+        out = Sketch()
+        out._parts = dict(self._parts)
+        out._wires = list(self._wires)
+        return out
+
     # -- editing (each call is one change) ------------------------------------
     def add_part(self, part: PlacedPart, index: int | None = None) -> None:
         """Add ``part``; ``index`` puts it back at a position (used by undo)."""

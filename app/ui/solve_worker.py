@@ -22,7 +22,7 @@ from ..assess import Caution
 from ..assess.return_path import explained
 from ..sketch.model import Sketch
 from ..sketch.netlist import WIRE_PREFIX, Netlist, to_circuit
-from .bench_results import assess_result, detached
+from .bench_results import assess_result
 from .heap import settle
 from ..units import format_value
 
@@ -309,7 +309,7 @@ class LiveSolver(QObject):
         if self._pool is None:
             self._pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="loopwright-solve")
         self._busy = True
-        self._pool.submit(self._work, self.generation, detached(self.sketch))
+        self._pool.submit(self._work, self.generation, self.sketch.drawing())  # edits go on meanwhile
 
     def _work(self, gen: int, sketch: Sketch) -> None:
         """On the worker thread: netlist, solve and cautions of a snapshot; always answers."""
