@@ -89,6 +89,24 @@ def test_the_worker_reads_a_copy_later_edits_leave_alone():
     assert sketch.has_part("R2")
 
 
+def test_a_drawing_solved_lately_gives_its_result_again_and_a_new_value_does_not():
+    """A change taken back gives the earlier solve's result (the result is a function of the
+    parts and wires); a new value at the same places is solved afresh. Ohm's law around the
+    one loop: I = 12 / (0.5 + R1 + 200) A."""
+    sketch = series(100.0)
+    first = solve_sketch(sketch, 1)
+    sketch.update_part("R1", values={"resistance": 300.0})
+    changed = solve_sketch(sketch, 2)
+    sketch.update_part("R1", values={"resistance": 100.0})  # taken back: a new part object, equal to the first
+    again = solve_sketch(sketch, 3)
+    assert abs(first.readings["R1"][0]) == pytest.approx(12.0 / 300.5, rel=1e-12)
+    assert abs(changed.readings["R1"][0]) == pytest.approx(12.0 / 500.5, rel=1e-12)
+    assert again.solution is first.solution and again.readings == first.readings
+    assert (first.generation, changed.generation, again.generation) == (1, 2, 3)
+    sketch.update_part("R1", label="tail lamp")  # not a value, but the cautions name parts: solved afresh
+    assert solve_sketch(sketch, 4).solution is not first.solution
+
+
 def test_edits_during_a_solve_end_in_the_newest_state(qtbot, threaded):
     sketch = series()
     solver = threaded(sketch)

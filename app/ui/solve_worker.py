@@ -10,8 +10,9 @@ dropped and the newest state solved instead.
 from __future__ import annotations
 
 import math
+import threading
 from concurrent.futures import ThreadPoolExecutor
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import networkx as nx
 from PySide6.QtCore import QObject, Signal
@@ -250,8 +251,34 @@ def _from_netlist(generation: int, netlist: Netlist, sketch: Sketch | None = Non
     return res
 
 
+_RECENT: list[tuple[list, list, Result]] = []  # (parts, wires, result) of the last solves, newest first
+_RECENT_KEPT = 4
+_RECENT_LOCK = threading.Lock()  # the worker thread and the window's both solve
+
+
 def solve_sketch(sketch: Sketch, generation: int = 0) -> Result:
-    """Solve ``sketch`` now and describe the result (never raises for a bad circuit)."""
+    """Solve ``sketch`` now and describe the result (never raises for a bad circuit).
+
+    The result follows from the parts and wires alone (a pure function of the drawing), so a
+    drawing among the last ``_RECENT_KEPT`` solved (a change taken back, an undo, a part
+    dragged back over where it was) gives that solve's result again, under ``generation``.
+    Parts and wires are immutable values: comparing the lists is an identity check for every
+    part an edit left alone.
+    """
+    parts, wires = sketch.parts, sketch.wires
+    with _RECENT_LOCK:
+        for k, (p, w, kept) in enumerate(_RECENT):
+            if p == parts and w == wires:
+                _RECENT.insert(0, _RECENT.pop(k))
+                return replace(kept, generation=generation)
+    result = _solved(sketch, generation)
+    with _RECENT_LOCK:
+        _RECENT.insert(0, (parts, wires, result))
+        del _RECENT[_RECENT_KEPT:]
+    return result
+
+
+def _solved(sketch: Sketch, generation: int) -> Result:
     try:
         netlist = to_circuit(sketch)
     except CircuitError as e:
