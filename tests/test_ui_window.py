@@ -214,3 +214,22 @@ def test_every_tool_of_the_palette_is_in_sight_in_a_short_window_and_a_tall_one(
         # is centred by the bar's layout, its icon out of line with the others')
         edges = {(bar.widgetForAction(a).x(), bar.widgetForAction(a).width()) for a in tools}
         assert len(edges) == 1, (height, edges)
+
+
+def test_the_status_hint_takes_the_room_it_needs_and_gives_it_back(qtbot, tmp_path):
+    """A 1024 px window shows the select tool's hint whole beside the solve summary; once the
+    hint passes, the summary has the bar to itself; a long hint takes at most half the window."""
+    from PySide6.QtWidgets import QApplication
+
+    win = open_window(qtbot, tmp_path, size=(1024, 700))
+    win.hint("Drag or arrows move (Alt: off what it touches); Tab: next part.")
+    QApplication.processEvents()
+    hint = win.hint_text
+    assert hint.fontMetrics().horizontalAdvance(hint.text()) <= hint.width() - 4
+    assert hint.toolTip() == ""  # nothing cut off, so no tooltip needed
+    win.hint("a refusal " * 40)
+    QApplication.processEvents()
+    assert hint.width() <= win.width() // 2 and hint.toolTip() == hint.text()
+    win.hint_text.clear()
+    QApplication.processEvents()
+    assert win.status_text.width() > 0.7 * win.statusBar().width()

@@ -101,11 +101,11 @@ class MainWindow(QMainWindow):
         self.readings = ReadingsView(self.readings_model)
         self.part_panel = PartPanel()
         self.status_text = StatusLine()  # new text repaints, never lays the window out again
-        self.hint_text = StatusLine()
+        self.hint_text = StatusLine(fit=True)  # as wide as its text, up to half the window
         self.hint_text.setObjectName("hint")
         self.where = StatusLine("x -00000  y -00000")
-        self.statusBar().addWidget(self.status_text, 3)
-        self.statusBar().addPermanentWidget(self.hint_text, 2)
+        self.statusBar().addWidget(self.status_text, 1)
+        self.statusBar().addPermanentWidget(self.hint_text)
         self.statusBar().addPermanentWidget(self.where)
         self._hint_timer = QTimer(self)
         self._hint_timer.setSingleShot(True)

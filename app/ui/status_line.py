@@ -20,14 +20,19 @@ class StatusLine(QWidget):
 
     ``room`` is a sample of the widest text expected: the widget asks for its
     width (an empty ``room`` asks for none and takes the space it is given).
+    ``fit`` makes it ask for its own text's width, at most half its window's, so a short
+    line beside it leaves it room: for a text that changes seldom (a hint, not a summary
+    after each solve), as each new width lays the status bar out again.
     """
 
-    def __init__(self, room: str = "", parent: QWidget | None = None) -> None:
+    def __init__(self, room: str = "", parent: QWidget | None = None, fit: bool = False) -> None:
         super().__init__(parent)
         self._text = ""
         self._room = room
-        self.setSizePolicy(QSizePolicy.Policy.Fixed if room else QSizePolicy.Policy.Ignored,
-                           QSizePolicy.Policy.Preferred)
+        self._fit = fit
+        horizontal = (QSizePolicy.Policy.Maximum if fit else
+                      QSizePolicy.Policy.Fixed if room else QSizePolicy.Policy.Ignored)
+        self.setSizePolicy(horizontal, QSizePolicy.Policy.Preferred)
 
     def text(self) -> str:
         return self._text
@@ -35,6 +40,8 @@ class StatusLine(QWidget):
     def setText(self, text: str) -> None:  # noqa: N802 (QLabel's name, so it reads the same)
         if text != self._text:
             self._text = text
+            if self._fit:
+                self.updateGeometry()
             self.setToolTip(text if self.fontMetrics().horizontalAdvance(text) > self.width() else "")
             self.update()
 
@@ -43,6 +50,8 @@ class StatusLine(QWidget):
 
     def sizeHint(self) -> QSize:  # noqa: N802 (Qt's name)
         fm = self.fontMetrics()
+        if self._fit:
+            return QSize(min(fm.horizontalAdvance(self._text) + 8, self.window().width() // 2), fm.height() + 4)
         return QSize(fm.horizontalAdvance(self._room) + 8 if self._room else 40, fm.height() + 4)
 
     def minimumSizeHint(self) -> QSize:  # noqa: N802 (Qt's name)
