@@ -13,6 +13,9 @@ neighbours, the circuit changes and most values on the drawing change, the heavi
 By default the part moves down and back up and the value cycles through seven,
 as when a person tries a change and takes it back; ``--fresh`` makes every edit
 bring a state not seen before (a different part moved each time, a new value).
+"drag a part" is a drag as a person makes one: one part carried ten grid steps on
+(each step a state not seen before, joined to its old neighbours by new wires),
+then taken back with undo (not timed) and the next drag begun on another part.
 
 ``--cpu`` times with the GUI thread's CPU time instead of the wall clock: the host's other
 load weighs less, so compare variants with it. Only below 400 parts, where the solve runs
@@ -44,6 +47,9 @@ from PySide6.QtWidgets import QApplication  # noqa: E402
 
 from app.sketch.model import PlacedPart, Sketch  # noqa: E402
 from app.ui.main_window import MainWindow  # noqa: E402
+
+
+DRAG_STEPS = 10  # grid steps of one drag in "drag a part"
 
 
 def grid_sketch(n_parts: int) -> Sketch:
@@ -193,8 +199,19 @@ def main(argv: list[str]) -> int:
             value = 1000.0 + 13.7 * (k + 1) if args.fresh else 1000.0 + (k % 7) * 100.0
             win.editor.set_values(victim, {"resistance": value})
 
+        def drag_start(k: int) -> None:
+            # every tenth step a new drag: the last one taken back (undo), a new part picked
+            if k % DRAG_STEPS == 0:
+                if k:
+                    win.stack.undo()
+                    wait_for_result(app, win)
+                win.scene.select([names[(len(names) // 2 + 5 * (k // DRAG_STEPS)) % len(names)]])
+
+        def drag(k: int) -> None:
+            win.editor.nudge(0, 1)  # one grid step further on: a state not seen before
+
         for label, fn, prepare in (("move a part", move, pick), ("move apart", move_apart, pick),
-                                   ("change value", revalue, None)):
+                                   ("change value", revalue, None), ("drag a part", drag, drag_start)):
             handled, updated, painted = measure(app, win, fn, reps, paints, prepare, clock)
             print(f"{len(sketch.parts):>6} {zoom:<12} {label:<14} {statistics.median(handled):>15.1f} "
                   f"{p95(handled):>6.1f}   {statistics.median(updated):>15.1f} {p95(updated):>6.1f} "
