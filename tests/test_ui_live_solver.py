@@ -243,3 +243,27 @@ def test_marks_an_edit_cannot_wait_for_are_placed_once_drawing_pauses(qtbot, tmp
         places.append(_mark_places(scene))
     # placed later, in the same order: the same places as all at once inside the edit
     assert places[0] == places[1]
+
+
+def test_later_steps_of_a_move_leave_placing_marks_until_it_pauses(qtbot, tmp_path, monkeypatch):
+    """A key step after the first (as each step of a drag) is solved and shown at once, but
+    its marks are placed only when the steps pause; the first step places some at once."""
+    from ui_support import open_window
+
+    win = open_window(qtbot, tmp_path, lattice(5, 5), name="lattice.lwsk")
+    scene = win.scene
+    placed = []
+    inner = SketchScene._place_loop
+    monkeypatch.setattr(SketchScene, "_place_loop", lambda self, mark: (placed.append(mark), inner(self, mark)))
+    upright = next(p.name for p in win.sketch.parts if p.kind == "resistor" and p.rotation == 90 and p.y == 4)
+    scene.select([upright])
+    win.editor.nudge(0, 1, apart=True)
+    first = len(placed)
+    assert first > 0  # the first step of a move places marks inside the edit, as any edit
+    generation = win.solver.generation
+    win.editor.nudge(0, 1, apart=True)  # the next step of the same move
+    assert win.solver.latest.generation == generation + 1  # solved and shown at once
+    assert len(placed) == first and scene._waiting  # but nothing placed yet
+    qtbot.waitUntil(lambda: not scene._waiting, timeout=3000)
+    assert len(placed) > first
+    assert not win.editor.stepping

@@ -39,6 +39,7 @@ class Editor:
         self._drag: tuple | None = None  # the mouse's move under way (``_carry_from_here``)
         self._keys: tuple | None = None  # the keys' move under way, and what must hold for it to go on
         self._stack_changes = 0  # undo stack index changes: any other step ends a move by keys
+        self.stepping = False  # while a later step of a move (a drag, keys in a row) is being made
         stack.indexChanged.connect(self._stack_changed)
         self._paste_shift = 0
 
@@ -166,7 +167,13 @@ class Editor:
         new_parts, new_wires = move_target(movers, base, wires, dx, dy, None if apart else staying)
         edit = Edit([(self.sketch.part(n), new_parts[n], None) for n in names],
                     tuple(self.sketch.wires), new_wires)
-        self.push(edit, "Move", ("drag", key))
+        # a drag's steps, and key steps after the first, come in a run: what is solved inside
+        # them may leave the careful placing of its marks until the run pauses (``stepping``)
+        self.stepping = self._drag is not None or last != (0, 0, False)
+        try:
+            self.push(edit, "Move", ("drag", key))
+        finally:
+            self.stepping = False
         self._reselect(names, new_wires, base, wires, dx, dy)
         return key, names, wires, movers, base, staying, (dx, dy, apart)
 

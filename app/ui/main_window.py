@@ -345,6 +345,8 @@ class MainWindow(QMainWindow):
 
     def _show_result(self, result: Result) -> None:
         self.bench.show_result(result)   # badges first, so loop marks are placed clear of them
+        if self.editor.stepping:  # a drag goes on: its marks are placed when it pauses
+            self.scene.place_now_up_to = 0
         self.scene.show_result(result)
         # a document's first solution places every mark at once; later ones place a few and
         # the rest when drawing pauses, so that a drag never waits for a whole new layout
