@@ -87,35 +87,41 @@ class _Conductors:
 
 
 def _corners(loop, ends: dict[str, tuple[str, str]], pos: dict[str, tuple[float, float]],
-             wires: _Conductors) -> tuple[tuple[float, float], ...] | None:
+             wires: _Conductors) -> tuple[tuple[tuple[float, float], ...] | None, tuple]:
     """The corners of the loop's window in grid units: through its parts' ends and along the
     wires between them, from the lowest corner (the same window gives the same corners
-    whichever branch the solver's loop starts from). None when it has no area to speak of."""
+    whichever branch the solver's loop starts from); None when it has no area to speak of.
+    And the wire routes taken: (from, to, points) each."""
     pts: list[tuple[float, float]] = []
+    routes = []
     last: str | None = None
+    first_point = ends[loop.parts[0][0]][0 if loop.parts[0][1] > 0 else 1]
     for name, sign in loop.parts:
         a, b = ends[name] if sign > 0 else ends[name][::-1]
         if a not in pos or b not in pos:
-            return None
-        way = [a, b] if last is None or last == a else wires.route(last, a)[1:] + [b]
+            return None, ()
+        way = [a, b]
+        if last is not None and last != a:
+            routes.append((last, a, route := tuple(wires.route(last, a))))
+            way = [*route[1:], b]
         for point in way:
             q = pos.get(point)
             if q is None:
-                return None
+                return None, ()
             if not pts or pts[-1] != q:
                 pts.append(q)
         last = b
-    first_point = ends[loop.parts[0][0]][0 if loop.parts[0][1] > 0 else 1]
     if last is not None and last != first_point:
-        for point in wires.route(last, first_point)[1:-1]:
+        routes.append((last, first_point, route := tuple(wires.route(last, first_point))))
+        for point in route[1:-1]:
             if point in pos and pts[-1] != pos[point]:
                 pts.append(pos[point])
     if len(pts) > 1 and pts[0] == pts[-1]:
         pts.pop()
     if len(pts) < 3:
-        return None
+        return None, tuple(routes)
     first = pts.index(min(pts))
-    return tuple(pts[first:] + pts[:first])
+    return tuple(pts[first:] + pts[:first]), tuple(routes)
 
 
 def _loop_centre(corners: tuple[tuple[float, float], ...]) -> tuple[float, float]:
@@ -135,24 +141,29 @@ def _loop_centre(corners: tuple[tuple[float, float], ...]) -> tuple[float, float
     return sum(p[0] for p in corners) / n, sum(p[1] for p in corners) / n
 
 
-_WINDOWS: dict[tuple, tuple[tuple[float, float] | None, list[tuple[float, float]]]] = {}
+_WINDOWS: dict[tuple, tuple] = {}  # per loop (its parts, signs and end points): centre, corners, routes
 _WINDOWS_KEPT = 4096
 
 
 def _window(loop, ends: dict[str, tuple[str, str]], pos: dict[str, tuple[float, float]], wires: _Conductors
             ) -> tuple[tuple[float, float] | None, list[tuple[float, float]]]:
-    """``_loop_centre`` of ``loop``'s window and its corners, kept by the corners (most windows
-    are the same from one solve to the next). The outline list is shared between results:
-    read it, never change it."""
-    corners = _corners(loop, ends, pos, wires)
-    if corners is None:
-        return None, []
-    hit = _WINDOWS.get(corners)
-    if hit is None:
-        if len(_WINDOWS) >= _WINDOWS_KEPT:
-            _WINDOWS.clear()
-        hit = _WINDOWS[corners] = (_loop_centre(corners), list(corners))
-    return hit
+    """``_loop_centre`` of ``loop``'s window and its corners.
+
+    Kept by the loop's parts with their signs and end names (the netlist names each point
+    by its grid position, ``netlist.point_name``): most windows are the same from one solve
+    to the next. A kept window that ran along wires between parts serves only while the
+    wires still run that way. The outline list is shared between results: read it, never
+    change it.
+    """
+    key = tuple((name, sign, ends.get(name)) for name, sign in loop.parts)
+    hit = _WINDOWS.get(key)
+    if hit is not None and all(tuple(wires.route(a, b)) == way for a, b, way in hit[2]):
+        return hit[0], hit[1]
+    corners, routes = _corners(loop, ends, pos, wires)
+    if len(_WINDOWS) >= _WINDOWS_KEPT:
+        _WINDOWS.clear()
+    hit = _WINDOWS[key] = (None, [], routes) if corners is None else (_loop_centre(corners), list(corners), routes)
+    return hit[0], hit[1]
 
 
 _LAST_WINDOWS: list[tuple[dict, list, list]] = []   # (ends, loop parts, windows) of the last solves, newest first

@@ -13,9 +13,10 @@ neighbours, the circuit changes and most values on the drawing change, the heavi
 By default the part moves down and back up and the value cycles through seven,
 as when a person tries a change and takes it back; ``--fresh`` makes every edit
 bring a state not seen before (a different part moved each time, a new value).
-"drag a part" is a drag as a person makes one: one part carried ten grid steps on
-(each step a state not seen before, joined to its old neighbours by new wires),
-then taken back with undo (not timed) and the next drag begun on another part.
+"drag a part" is a drag as a person makes one: a part on the lattice's bottom edge
+pulled ten grid steps down into the free paper (each step a state not seen before,
+joined to its old neighbours by new wires), then taken back with undo (not timed)
+and the next drag begun on another part of that edge.
 
 ``--cpu`` times with the GUI thread's CPU time instead of the wall clock: the host's other
 load weighs less, so compare variants with it. Only below 400 parts, where the solve runs
@@ -199,13 +200,17 @@ def main(argv: list[str]) -> int:
             value = 1000.0 + 13.7 * (k + 1) if args.fresh else 1000.0 + (k % 7) * 100.0
             win.editor.set_values(victim, {"resistance": value})
 
+        bottom = max(p.y for p in sketch.parts if p.kind == "resistor")
+        edge = [p.name for p in sketch.parts if p.kind == "resistor" and p.rotation == 0 and p.y == bottom]
+
         def drag_start(k: int) -> None:
-            # every tenth step a new drag: the last one taken back (undo), a new part picked
+            # every tenth step a new drag: the last one taken back (undo), the next part along
+            # the lattice's bottom edge picked, to be pulled down into the free paper below
             if k % DRAG_STEPS == 0:
                 if k:
                     win.stack.undo()
                     wait_for_result(app, win)
-                win.scene.select([names[(len(names) // 2 + 5 * (k // DRAG_STEPS)) % len(names)]])
+                win.scene.select([edge[(len(edge) // 2 + 3 * (k // DRAG_STEPS)) % len(edge)]])
 
         def drag(k: int) -> None:
             win.editor.nudge(0, 1)  # one grid step further on: a state not seen before
