@@ -124,3 +124,20 @@ def test_loop_currents_show_beside_caution_badges(qapp):
         for name, text in part_texts(scene):
             assert not rect.intersects(text), f"{mark.text} covers a text of {name}"
         assert not any(rect.intersects(b) for b in badges), f"{mark.text} covers a badge"
+
+
+def test_a_window_follows_its_wires_when_only_the_wires_move(qapp):
+    """The same parts at the same places, the top rail drawn two steps higher: the windows
+    (kept from one solve to the next by their parts) must reach the new rail."""
+    sketch = stubbed_ladder()
+    before = solve_sketch(sketch)
+    assert all(min(y for _, y in o) == 0 for o in before.loop_outlines)
+    higher = Sketch()
+    for p in sketch.parts:
+        higher.add_part(p)
+    for w in (Wire(0, -2, 0, 2), Wire(0, 6, 0, 8), Wire(0, -2, 16, -2), Wire(0, 8, 16, 8),
+              Wire(8, -2, 8, 2), Wire(8, 6, 8, 8), Wire(16, -2, 16, 2), Wire(16, 6, 16, 8)):
+        higher.add_wire(w)
+    after = solve_sketch(higher)
+    assert after.solved and len(after.loop_outlines) == 2
+    assert all(min(y for _, y in o) == -2 for o in after.loop_outlines), after.loop_outlines
