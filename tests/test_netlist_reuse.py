@@ -8,6 +8,7 @@ from hypothesis import strategies as st
 from app.sketch import netlist as netlist_module
 from app.sketch.model import PlacedPart, Sketch, Wire
 from app.sketch.netlist import to_circuit
+from app.sketch.windows import forget_kept
 from app.ui import solve_worker
 from app.ui.solve_worker import solve_sketch
 from solver import CircuitError
@@ -144,8 +145,8 @@ def test_loop_marks_after_a_value_edit_are_those_worked_out_afresh():
     solve_sketch(s)
     s.update_part("R2", values={"resistance": 300.0})
     kept = solve_sketch(s)
-    solve_worker._LAST_WINDOWS.clear()
-    solve_worker._WINDOWS.clear()
+    forget_kept()
+    solve_worker._RECENT.clear()  # a recent drawing's result would come back whole, windows and all
     netlist_module._LAYOUTS = ()
     again = solve_sketch(s)
     assert len(kept.loops) == 2
@@ -160,8 +161,8 @@ def test_loop_marks_after_a_value_edit_are_those_worked_out_afresh():
     s.replace_wire(0, Wire(0, 0, 8, 0))
     s.replace_wire(1, Wire(0, 4, 8, 4))
     back = solve_sketch(s)
-    solve_worker._LAST_WINDOWS.clear()
-    solve_worker._WINDOWS.clear()
+    forget_kept()
+    solve_worker._RECENT.clear()  # a recent drawing's result would come back whole, windows and all
     netlist_module._LAYOUTS = ()
     afresh = solve_sketch(s)
     assert (back.loops, back.loop_outlines) == (afresh.loops, afresh.loop_outlines) == (kept.loops, kept.loop_outlines)
