@@ -161,3 +161,21 @@ def test_turning_descriptions_on_moves_the_marks_off_them(qapp, demo):
         rect = mark.sceneBoundingRect()
         hidden = [name for name, r in rows if rect.intersects(r)]
         assert not hidden, f"{type(mark).__name__} {mark.text} lies over a text of {hidden}"
+
+
+def test_turning_a_layer_on_leaves_the_next_solution_its_changed_parts(qapp):
+    """Between an edit and its solution (a large sketch's solve runs on a worker thread) the
+    parts the edit changed are noted, so the solution can hang again the tags they now hide;
+    turning a layer on in between must not take that note away."""
+    from app.ui.scene import SketchScene
+    from app.ui.solve_worker import solve_sketch
+
+    sketch = loop()
+    scene = SketchScene(sketch)
+    scene.show_result(solve_sketch(sketch))
+    scene.settle_marks()
+    sketch.update_part("R2", label="bay 3 heater")  # the edit: R2's text grows
+    assert "R2" in scene._new_parts
+    scene.set_layer("drops", False)
+    scene.set_layer("drops", True)
+    assert "R2" in scene._new_parts

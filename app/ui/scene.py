@@ -327,7 +327,7 @@ class SketchScene(QGraphicsScene):
         self._clear_fault()
         self.solved = True
         readable = self.marks_readable()
-        marked, owed = self._marked, self._owed
+        marked, owed = self._marked, self._owed  # (read only here: ``_lay`` writes ``_marked``)
         sight = self._names_in_sight() if len(self.part_items) >= self.LAY_IN_SIGHT_FROM else None
         for name, item in self.part_items.items():
             if item.current_mark is None:
@@ -343,9 +343,7 @@ class SketchScene(QGraphicsScene):
                 continue
             if owed:
                 owed.pop(name, None)
-            marked[name] = (item, r)
-            item.current_mark.set_value(None if r is None else r[0], readable)
-            item.drop_mark.set_value(None if r is None else r[1], readable)
+            self._lay(name, item, r, readable)
         loops_on = self.layers["loops"]
         new_homes = []
         keys = [(loop[0], tuple(outlines[k]) if outlines else ()) for k, loop in enumerate(loops)]
@@ -400,7 +398,7 @@ class SketchScene(QGraphicsScene):
     def settle_marks(self) -> None:
         """Lay every owed reading and place every mark still waiting for a place (before a
         picture is taken, say)."""
-        self.lay_owed(False)
+        self.lay_owed()
         with self._readings.hold():
             self._place([], all_now=True)
 
@@ -473,31 +471,31 @@ class SketchScene(QGraphicsScene):
         return self._names_in(list(self._clear_in.values()))
 
     def lay_owed(self, view=None) -> None:
-        """Lay the owed readings of the parts ``view`` can show (every view's: None; all of them:
-        ``view`` False), before it paints them."""
+        """Lay the owed readings of the parts ``view`` can show, before it paints them (None:
+        every owed reading, as for a picture or a pause in the drawing)."""
         if not self._owed:
             return
-        if view is False:
+        if view is None:
             names = set(self._owed)
         else:
-            areas = []
-            for v in self.views() if view is None else (view,):
-                area = self._sight(v)
-                clear = self._clear_in.get(id(v))
-                if area.isEmpty() or (clear is not None and not clear.isEmpty() and clear.contains(area)):
-                    continue
-                self._clear_in[id(v)] = area
-                areas.append(area)
-            names = self._names_in(areas)
+            area = self._sight(view)
+            clear = self._clear_in.get(id(view))
+            if area.isEmpty() or (clear is not None and not clear.isEmpty() and clear.contains(area)):
+                return
+            self._clear_in[id(view)] = area
+            names = self._names_in([area])
         readable = self.marks_readable()
         with self._readings.hold():
             for name in names & self._owed.keys():
                 item, r = self._owed.pop(name)
-                if self.part_items.get(name) is not item:
-                    continue
-                self._marked[name] = (item, r)
-                item.current_mark.set_value(None if r is None else r[0], readable)
-                item.drop_mark.set_value(None if r is None else r[1], readable)
+                if self.part_items.get(name) is item:
+                    self._lay(name, item, r, readable)
+
+    def _lay(self, name: str, item: PartItem, reading: tuple | None, readable: bool) -> None:
+        """Show ``reading`` (current, drop; None: no valid result) on the marks of part ``name``."""
+        self._marked[name] = (item, reading)
+        item.current_mark.set_value(None if reading is None else reading[0], readable)
+        item.drop_mark.set_value(None if reading is None else reading[1], readable)
 
     def marks_readable(self) -> bool:
         """False when every view shows the drawing too small for marks to be drawn (``too_small``)."""
@@ -512,8 +510,11 @@ class SketchScene(QGraphicsScene):
         one edit to the next, so without this a label laid out after the tag stays hidden under it."""
         names, self._new_parts = self._new_parts, set()
         texts = self._part_texts(names)
-        if texts is None:
-            return []
+        return [] if texts is None else self._tags_over(texts, placing)
+
+    def _tags_over(self, texts: np.ndarray, placing: list[PotentialTag]) -> list[PotentialTag]:
+        """The shown tags, other than ``placing``, over ``texts`` (rows of left, top, right,
+        bottom) that hide more than they did when they were hung."""
         skip = {id(t) for t in placing}
         tags = [t for t in self._tags if t.active and id(t) not in skip]
         return [t for t in marks_meeting(tags, texts)
@@ -533,12 +534,13 @@ class SketchScene(QGraphicsScene):
 
     def _place_clear_of_new_texts(self) -> None:
         """A layer of the parts' texts came on: hang again the tags and place again the loop
-        marks now over them (both keep their places otherwise, and were placed without it)."""
-        self._new_parts |= self.part_items.keys()
-        jobs = [(self._place_tag, t, t.key) for t in self._tags_hiding_new_parts([])]
+        marks now over them (both keep their places otherwise, and were placed without it).
+        The parts changed since the last solution stay noted for it (``_new_parts``)."""
         texts = self._part_texts(self.part_items)
-        if texts is not None:
-            jobs += [(self._place_loop, m, m.key) for m in marks_meeting([m for m in self._loops if m.active], texts)]
+        if texts is None:
+            return
+        jobs = [(self._place_tag, t, t.key) for t in self._tags_over(texts, [])]
+        jobs += [(self._place_loop, m, m.key) for m in marks_meeting([m for m in self._loops if m.active], texts)]
         self._place(jobs)
 
     FAR_TAG = 4 * COVER_TEXT  # what hanging a tag farther out costs: as much as hiding 4 px² of text
