@@ -64,6 +64,8 @@ class SketchScene(QGraphicsScene):
         self._place_timer.setInterval(self.PLACE_AFTER_MS)
         self._place_timer.timeout.connect(self.settle_marks)
         self.setItemIndexMethod(QGraphicsScene.ItemIndexMethod.BspTreeIndex)
+        self._paper = QRectF(-self.PAPER_MARGIN, -self.PAPER_MARGIN, 2 * self.PAPER_MARGIN, 2 * self.PAPER_MARGIN)
+        self.setSceneRect(self._paper)
         sketch.subscribe(self._on_model_changed)
         self.sync()
 
@@ -88,9 +90,35 @@ class SketchScene(QGraphicsScene):
     def sync(self) -> None:
         """Bring the items in line with the document and announce the change."""
         self._dirty = False
-        self._sync_parts()
-        self._sync_wires()
+        parts = self._sync_parts()
+        wires = self._sync_wires()
+        points = [(p.x, p.y) for p in parts]
+        points += [end for w in wires for end in w.ends]
+        self.reach(points)
         self.documentChanged.emit()
+
+    # -- the paper --------------------------------------------------------------
+    PAPER_MARGIN = 1200.0  # scene units of free paper kept beyond the drawing on every side
+
+    def reach(self, points: list[tuple[int, int]]) -> None:
+        """Let the paper (the scene rect the views scroll over) reach past grid ``points``.
+
+        The paper reaches ``PAPER_MARGIN`` past the drawing, so a person can scroll into free
+        paper to draw there at any zoom. It grows by a whole margin once something comes within
+        half a margin of its edge, and never shrinks while the document is open: growing it
+        moves or repaints the whole view, so a part dragged out past the drawing's edge does
+        that once, not on every step (Qt's own scene rect grows with every such step).
+        """
+        if not points:
+            return
+        xs, ys = [p[0] for p in points], [p[1] for p in points]
+        box = QRectF(QPointF(min(xs) * GRID, min(ys) * GRID), QPointF(max(xs) * GRID, max(ys) * GRID))
+        half = self.PAPER_MARGIN / 2
+        if self._paper.adjusted(half, half, -half, -half).contains(box):
+            return
+        m = self.PAPER_MARGIN
+        self._paper = self._paper.united(box.adjusted(-m, -m, m, m))
+        self.setSceneRect(self._paper)
 
     def _new_part_item(self, part) -> PartItem:
         item = PartItem(part, self.style, described=self.layers["descriptions"])
@@ -104,8 +132,9 @@ class SketchScene(QGraphicsScene):
         self.addItem(item)
         return item
 
-    def _sync_parts(self) -> None:
-        """Patch the part items: only parts that are new, gone or replaced are looked at in Qt."""
+    def _sync_parts(self) -> list:
+        """Patch the part items: only parts that are new, gone or replaced are looked at in Qt.
+        Returns the parts new or replaced."""
         items = self.part_items
         shown = self._shown
         parts = self.sketch.parts
@@ -132,6 +161,7 @@ class SketchScene(QGraphicsScene):
             self._new_parts.add(name)
             self._axis[name] = self._label_axis(item)
         self._orient_labels(parts, {p.name for p in changed})
+        return changed
 
     def _remove_part_item(self, item: PartItem) -> None:
         self._readings.forget(item)
@@ -165,7 +195,8 @@ class SketchScene(QGraphicsScene):
             if item.side != side:
                 item.set_side(side)
 
-    def _sync_wires(self) -> None:
+    def _sync_wires(self) -> list:
+        """Patch the wire items as ``_sync_parts`` does the parts; returns the wires new or replaced."""
         new = self.sketch.wires
         old = self.wire_items
         n_old, n_new, m = len(old), len(new), min(len(old), len(new))
@@ -195,6 +226,7 @@ class SketchScene(QGraphicsScene):
         else:
             for i in range(p, p + k):
                 self.wire_items[i].index = i
+        return mid_new
 
     # -- selection --------------------------------------------------------------
     def selected_parts(self) -> list[str]:

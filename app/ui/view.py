@@ -176,6 +176,8 @@ class CanvasView(QGraphicsView):
     def move_cursor_to(self, point: GridPoint) -> None:
         """Put the keyboard cursor (and the part or wire being drawn) on ``point``."""
         self.cursor_point = point
+        if self.editor is not None:
+            self.sketch_scene.reach([point])  # keys can walk the cursor off the paper's edge
         if self._cursor is not None:
             self._cursor.setPos(to_scene(point))
         self._update_ghost()
