@@ -122,8 +122,8 @@ def cmd_shot(args: argparse.Namespace) -> int:
     """Write the picture; exit 2 (after writing it, with the problem marked) if the circuit cannot be solved."""
     _load(args.file)  # file problems are reported before Qt starts
     out = Path(args.output)
-    if out.suffix.lower() not in (".png", ".svg"):
-        raise _FileProblem(f"Pictures can be written as .png or .svg, not '{out.suffix or out.name}'.")
+    if out.suffix.lower() not in (".png", ".svg", ".pdf"):
+        raise _FileProblem(f"Pictures can be written as .png, .svg or .pdf, not '{out.suffix or out.name}'.")
     if out.is_dir() or not out.parent.is_dir():
         raise _FileProblem(f"Cannot write {out}: " +
                            ("that is a folder." if out.is_dir() else "its folder does not exist."))
@@ -173,7 +173,7 @@ def _parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_solve)
     t = sub.add_parser("shot", help="render the annotated sketch to a PNG or SVG picture")
     t.add_argument("file", help="a .lwsk sketch")
-    t.add_argument("-o", "--output", required=True, help="picture to write (.png or .svg)")
+    t.add_argument("-o", "--output", required=True, help="picture to write: .png, .svg, or .pdf (an A4 page with the cautions)")
     t.set_defaults(func=cmd_shot)
     e = sub.add_parser("equations", help="print KVL per loop and KCL per junction, with numbers and residuals")
     e.add_argument("file", help="a .lwsk sketch (its current tags name the currents)")

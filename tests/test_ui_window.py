@@ -72,7 +72,7 @@ def test_shot_writes_png_and_svg(qtbot, tmp_path):
     render(path, tmp_path / "loop.svg")
     text = Path(tmp_path / "loop.svg").read_text(encoding="utf-8")
     assert "<svg" in text and "40.0 mA" in text  # 12 V across 300 Ω (Ohm's law)
-    with pytest.raises(ValueError, match="png or .svg"):
+    with pytest.raises(ValueError, match="svg or .pdf"):
         render(path, tmp_path / "loop.bmp")
 
 

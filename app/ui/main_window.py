@@ -7,9 +7,11 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
-from PySide6.QtCore import QEvent, QItemSelection, QItemSelectionModel, QSettings, Qt, QTimer, Signal
-from PySide6.QtGui import QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QUndoStack
-from PySide6.QtWidgets import (QApplication, QFileDialog, QLabel, QMainWindow,
+from PySide6.QtCore import QEvent, QItemSelection, QItemSelectionModel, QRectF, QSettings, Qt, QTimer, Signal
+from PySide6.QtGui import (QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QPageLayout,
+                           QPainter, QUndoStack)
+from PySide6.QtPrintSupport import QPrintDialog, QPrinter
+from PySide6.QtWidgets import (QApplication, QDialog, QFileDialog, QLabel, QMainWindow,
                                QMessageBox, QSizePolicy, QVBoxLayout, QWidget)
 
 from ..sketch.fileio import SaveError, SketchFileError, load_sketch, save_sketch
@@ -23,6 +25,7 @@ from .hand_analysis import HandAnalysis
 from .heap import RestCollector
 from .help_dialog import KeysDialog, show_about
 from .icons import tool_icon
+from .page import page_notes, paint_page
 from .parts_bar import PartsBar
 from .properties import InlineValueEditor, PartPanel
 from .readings import ReadingsModel, ReadingsView
@@ -160,6 +163,7 @@ class MainWindow(QMainWindow):
         self.act_save = self._action("&Save", self.save, K.Save)
         self.act_save_as = self._action("Save &As…", self.save_as, K.SaveAs)
         self.act_export = self._action("&Export Picture…", self.export_picture)
+        self.act_print = self._action("&Print…", self.print_sketch, K.Print)
         self.act_close = self._action("&Close", self.close_sketch, K.Close)
         self.act_quit = self._action("&Quit", self.close, K.Quit)
         self.act_undo = self._action("&Undo", lambda: self.stack.undo(), K.Undo)
@@ -232,6 +236,7 @@ class MainWindow(QMainWindow):
         f.addAction(self.act_save)
         f.addAction(self.act_save_as)
         f.addAction(self.act_export)
+        f.addAction(self.act_print)
         f.addSeparator()
         f.addAction(self.act_close)
         f.addAction(self.act_quit)
@@ -593,13 +598,50 @@ class MainWindow(QMainWindow):
 
     def export_picture(self) -> None:
         start = str(self.path.with_suffix(".png")) if self.path else str(Path.home() / "sketch.png")
-        path, _ = QFileDialog.getSaveFileName(self, "Export picture", start, "PNG picture (*.png);;SVG drawing (*.svg)")
+        path, _ = QFileDialog.getSaveFileName(self, "Export picture", start,
+                                              "PNG picture (*.png);;SVG drawing (*.svg);;PDF page with the cautions (*.pdf)")
         if path:
             self.scene.clearSelection()
             try:
-                render_scene(self.scene, path)
+                render_scene(self.scene, path, title=self._page_title(), cautions=self._cautions())
             except (ValueError, OSError) as e:
                 self.tell("Cannot export the picture", str(e))
+
+    def _page_title(self) -> str:
+        return self.path.name if self.path else "Untitled sketch"
+
+    def _cautions(self) -> list:
+        """The cautions of the solution on the drawing (none while it is not solved)."""
+        latest = self.solver.latest
+        return latest.assessment if latest is not None and not latest.error else []
+
+    def print_sketch(self) -> None:
+        """Print the drawing on one page, with its cautions under it (``page.paint_page``)."""
+        printer = self.choose_printer()
+        if printer is None:
+            return
+        self.scene.clearSelection()
+        painter = QPainter()
+        if not painter.begin(printer):
+            self.tell("Cannot print", "The printer could not be started; check that it is on and free.")
+            return
+        try:
+            area = printer.pageLayout().paintRectPixels(printer.resolution())
+            paint_page(self.scene, painter, QRectF(0, 0, area.width(), area.height()), self._page_title(),
+                       page_notes(self._cautions()))
+        finally:
+            painter.end()
+
+    def choose_printer(self) -> QPrinter | None:
+        """A printer set up by the person in the print dialog, the page turned to suit the
+        drawing's shape to begin with (None: the dialog was cancelled)."""
+        printer = QPrinter(QPrinter.PrinterMode.HighResolution)
+        printer.setDocName(self._page_title())
+        rect = self.scene.content_rect()
+        printer.setPageOrientation(QPageLayout.Orientation.Landscape if rect.width() >= rect.height()
+                                   else QPageLayout.Orientation.Portrait)
+        dialog = QPrintDialog(printer, self)
+        return printer if dialog.exec() == QDialog.DialogCode.Accepted else None
 
     def _remember(self, path: Path) -> None:
         recent = [p for p in self.recent_files() if p != str(path)]

@@ -13,7 +13,7 @@ from contextlib import contextmanager
 import numpy as np
 from PySide6.QtCore import QPointF, QRectF, Qt, QTimer, Signal
 from PySide6.QtGui import QPainter, QPolygonF
-from PySide6.QtWidgets import QGraphicsScene, QStyleOptionGraphicsItem
+from PySide6.QtWidgets import QGraphicsItem, QGraphicsScene, QStyleOptionGraphicsItem
 
 from ..sketch.model import Sketch
 from .annotations import CurrentMark, DropMark, FaultNote, LoopMark, PotentialTag, ReadingLayer, marks_meeting
@@ -274,6 +274,23 @@ class SketchScene(QGraphicsScene):
         self._readings.drop_pictures()
 
     drawn_exactly = False  # True while a picture file is made: every shape drawn afresh (shot.py)
+
+    @contextmanager
+    def drawn_afresh(self) -> Iterator[None]:
+        """Items paint themselves inside the block, not their cached screen pixels (nor the
+        pictures of parts and shapes a view copies in, ``drawn_exactly``), so an SVG holds lines
+        and text, and a PNG or a printed page is drawn at its own resolution, to the last pixel."""
+        items = self.items()
+        modes = [i.cacheMode() for i in items]
+        for i in items:
+            i.setCacheMode(QGraphicsItem.CacheMode.NoCache)
+        self.drawn_exactly = True
+        try:
+            yield
+        finally:
+            self.drawn_exactly = False
+            for i, mode in zip(items, modes):
+                i.setCacheMode(mode)
 
     def drawBackground(self, painter: QPainter, rect: QRectF) -> None:  # noqa: N802 (Qt's name)
         """The drawing's wires and parts, which lie on the paper (``items.OnPaper``)."""

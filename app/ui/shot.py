@@ -1,18 +1,17 @@
-"""Pictures without a screen: the annotated sketch as PNG (QImage) or SVG (QtSvg)."""
+"""Pictures without a screen: the annotated sketch as PNG (QImage), SVG (QtSvg) or a PDF page (``page``)."""
 from __future__ import annotations
 
 import os
 import sys
-from collections.abc import Iterator
-from contextlib import contextmanager
 from pathlib import Path
 
 from PySide6.QtCore import QRectF, QSize, Qt
 from PySide6.QtGui import QImage, QPainter
-from PySide6.QtWidgets import QApplication, QGraphicsItem
+from PySide6.QtWidgets import QApplication
 
 from ..sketch.fileio import load_sketch
 from .bench_marks import BenchMarks
+from .page import page_notes, write_pdf
 from .scene import SketchScene
 from .solve_worker import solve_sketch
 from .symbols import IEC
@@ -20,7 +19,7 @@ from .theme import LIGHT, current_theme, set_theme
 
 __all__ = ["render", "render_scene", "ensure_app", "PICTURE_TYPES"]
 
-PICTURE_TYPES = (".png", ".svg")
+PICTURE_TYPES = (".png", ".svg", ".pdf")
 
 
 def ensure_app() -> QApplication:
@@ -34,30 +33,18 @@ def ensure_app() -> QApplication:
     return app  # type: ignore[return-value]
 
 
-@contextmanager
-def _drawn_afresh(scene: SketchScene) -> Iterator[None]:
-    """Items paint themselves while the picture is made, not their cached screen pixels
-    (nor the pictures of parts and shapes a view copies in, ``drawn_exactly``), so an SVG
-    holds lines and text and a PNG is drawn at its own resolution, to the last pixel."""
-    items = scene.items()
-    modes = [i.cacheMode() for i in items]
-    for i in items:
-        i.setCacheMode(QGraphicsItem.CacheMode.NoCache)
-    scene.drawn_exactly = True
-    try:
-        yield
-    finally:
-        scene.drawn_exactly = False
-        for i, mode in zip(items, modes):
-            i.setCacheMode(mode)
-
-
-def render_scene(scene: SketchScene, path_out: str | os.PathLike[str], scale: float = 2.0) -> None:
-    """Write everything drawn in ``scene`` to a PNG or SVG file, on the scheme's paper colour."""
+def render_scene(scene: SketchScene, path_out: str | os.PathLike[str], scale: float = 2.0,
+                 title: str = "", cautions: list | None = None) -> None:
+    """Write everything drawn in ``scene`` to a PNG or SVG file, on the scheme's paper colour,
+    or to a PDF page headed ``title`` (default: the file's name) with ``cautions`` (the
+    solution's ``Caution`` list) under the drawing."""
     out = Path(path_out)
     suffix = out.suffix.lower()
     if suffix not in PICTURE_TYPES:
-        raise ValueError(f"Pictures can be written as .png or .svg, not '{out.suffix or out.name}'.")
+        raise ValueError(f"Pictures can be written as .png, .svg or .pdf, not '{out.suffix or out.name}'.")
+    if suffix == ".pdf":
+        write_pdf(scene, out, title or out.stem, page_notes(cautions or []))
+        return
     scene.settle_marks()  # no mark left waiting for its place in a picture
     rect = scene.content_rect()
     if rect.isNull() or rect.width() < 1:
@@ -69,7 +56,7 @@ def render_scene(scene: SketchScene, path_out: str | os.PathLike[str], scale: fl
         image.fill(paper)
         painter = QPainter(image)
         painter.setRenderHints(QPainter.RenderHint.Antialiasing | QPainter.RenderHint.TextAntialiasing)
-        with _drawn_afresh(scene):
+        with scene.drawn_afresh():
             scene.render(painter, QRectF(0, 0, image.width(), image.height()), rect,
                          Qt.AspectRatioMode.KeepAspectRatio)
         painter.end()
@@ -85,20 +72,20 @@ def render_scene(scene: SketchScene, path_out: str | os.PathLike[str], scale: fl
     gen.setDescription("Sketch with its mesh-current solution")
     painter = QPainter(gen)
     painter.fillRect(QRectF(0, 0, rect.width(), rect.height()), paper)
-    with _drawn_afresh(scene):
+    with scene.drawn_afresh():
         scene.render(painter, QRectF(0, 0, rect.width(), rect.height()), rect, Qt.AspectRatioMode.KeepAspectRatio)
     painter.end()
 
 
 def render(path_in: str | os.PathLike[str], path_out: str | os.PathLike[str]) -> None:
-    """Render the annotated sketch in ``path_in`` to ``path_out`` (.png or .svg), offscreen.
+    """Render the annotated sketch in ``path_in`` to ``path_out`` (.png, .svg or .pdf), offscreen.
 
     Raises ``SketchFileError`` for a file that cannot be read and ValueError
-    for a picture type other than PNG or SVG. Always uses the light scheme
+    for a picture type other than PNG, SVG or PDF. Always uses the light scheme
     and IEC symbols, so pictures match from machine to machine.
     """
     if Path(path_out).suffix.lower() not in PICTURE_TYPES:
-        raise ValueError(f"Pictures can be written as .png or .svg, not '{Path(path_out).suffix or path_out}'.")
+        raise ValueError(f"Pictures can be written as .png, .svg or .pdf, not '{Path(path_out).suffix or path_out}'.")
     sketch = load_sketch(path_in)
     ensure_app()
     set_theme(LIGHT)
@@ -108,6 +95,7 @@ def render(path_in: str | os.PathLike[str], path_out: str | os.PathLike[str]) ->
         marks = BenchMarks(scene, scene.part_items)  # cautions and meter displays, as in the window
         marks.show(result.assessment if not result.error else [])
         scene.show_result(result)  # after the badges, so loop marks are placed clear of them
-        render_scene(scene, path_out)
+        render_scene(scene, path_out, title=Path(path_in).name,
+                     cautions=result.assessment if not result.error else [])
     finally:
         set_theme(None)

@@ -6,11 +6,13 @@ of these colours also has a word or a shape (WCAG 2.1, 1.4.1).
 """
 from __future__ import annotations
 
-from dataclasses import dataclass
+from collections.abc import Iterator
+from contextlib import contextmanager
+from dataclasses import dataclass, replace
 
 from PySide6.QtGui import QColor, QFont, QGuiApplication, QPalette
 
-__all__ = ["Theme", "LIGHT", "DARK", "current_theme", "set_theme", "use_scheme", "window_palette", "GRID",
+__all__ = ["Theme", "LIGHT", "DARK", "PRINT", "current_theme", "set_theme", "scheme_for", "use_scheme", "window_palette", "GRID",
            "label_font", "small_font", "description_font", "REFUSAL", "style_refusal"]
 
 GRID = 20.0  # scene units per grid step
@@ -54,6 +56,7 @@ DARK = Theme(
     loop=QColor("#b7a2e3"), fault=QColor("#ff7468"), note=QColor("#3d2422"),
     loose=QColor("#f0a540"), ghost=QColor("#7db4dc"),
 )
+PRINT = replace(LIGHT, paper=QColor("#ffffff"))  # the light scheme on a white sheet (``page``)
 
 _current: Theme | None = None
 _auto: Theme | None = None  # the system's scheme, worked out once per palette
@@ -91,6 +94,20 @@ def set_theme(theme: Theme | None) -> None:
     global _current, _auto
     _current = theme
     _auto = None
+
+
+@contextmanager
+def scheme_for(theme: Theme) -> Iterator[None]:
+    """Draw in ``theme`` inside the block (a page printed in ink on white paper, say), then in
+    the scheme used before. Whatever keeps pictures of itself must not be painted meanwhile
+    but afresh (``SketchScene.drawn_afresh``): its pictures are of the other scheme's colours."""
+    global _current, _auto
+    was = _current, _auto
+    _current = theme
+    try:
+        yield
+    finally:
+        _current, _auto = was
 
 
 # the window's own colours (panels, menus, tables) per scheme, for when the scheme chosen is

@@ -1,0 +1,112 @@
+"""The sketch on a sheet: `loopwright shot … -o X.pdf` and File ▸ Print.
+
+The PDF is read back with pypdf, a reader the project did not write. The values checked
+are worked out by hand here (closed forms named beside each), not taken from the program.
+"""
+from __future__ import annotations
+
+import unicodedata
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+pytest.importorskip("pytestqt")
+pypdf = pytest.importorskip("pypdf")
+
+from PySide6.QtCore import QRectF, Qt  # noqa: E402
+from PySide6.QtGui import QImage, QPainter  # noqa: E402
+from PySide6.QtPrintSupport import QPrinter  # noqa: E402
+
+from app.assess import DISCLAIMER  # noqa: E402
+from app.cli import main  # noqa: E402
+from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
+from app.ui.page import paint_page, page_notes  # noqa: E402
+from app.ui.theme import DARK, LIGHT, current_theme, use_scheme  # noqa: E402
+from ui_support import open_window  # noqa: E402
+
+DEMOS = Path(__file__).resolve().parent.parent / "demo_circuits"
+MM = 72 / 25.4  # PDF points per millimetre
+
+
+def _text(path: Path) -> tuple[str, list]:
+    reader = pypdf.PdfReader(str(path))
+    # pypdf may split words with tabs and keep the font's ligatures ("ﬁ"): spaces and NFKC
+    return " ".join(unicodedata.normalize("NFKC", reader.pages[0].extract_text()).split()), reader.pages
+
+
+def one_loop() -> Sketch:
+    """A 12 V cell driving 100 Ω and 200 Ω in series."""
+    s = Sketch()
+    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 12.0}))
+    s.add_part(PlacedPart("resistor", "R1", 0, 0, 0, False, {"resistance": 100.0}))
+    s.add_part(PlacedPart("resistor", "R2", 4, 0, 90, False, {"resistance": 200.0}))
+    s.add_wire(Wire(0, 4, 4, 4))
+    s.add_part(PlacedPart("ground", "GND1", 0, 4))
+    return s
+
+
+def test_shot_writes_one_a4_page_with_the_solution_and_the_disclaimer(capsys, tmp_path):
+    out = tmp_path / "fixture.pdf"
+    assert main(["shot", str(DEMOS / "bench_supply_fixture.lwsk"), "-o", str(out)]) == 0
+    text, pages = _text(out)
+    assert len(pages) == 1
+    # ISO 216: A4 is 210 mm × 297 mm; the fixture is wider than tall, so the page lies across
+    box = pages[0].mediabox
+    assert float(box.width) == pytest.approx(297 * MM, abs=1) and float(box.height) == pytest.approx(210 * MM, abs=1)
+    assert "bench_supply_fixture.lwsk" in text
+    # by hand: 12 V / (0.05 + 47 + 100 ∥ 550) Ω = 91.1 mA through the supply (series–parallel reduction)
+    assert "91.1 mA" in text
+    assert " ".join(DISCLAIMER.split()) in text
+
+
+def test_the_page_lists_the_cautions_under_the_drawing(capsys, tmp_path):
+    out = tmp_path / "stall.pdf"
+    assert main(["shot", str(DEMOS / "market_stall_lamps.lwsk"), "-o", str(out)]) == 0
+    text, _ = _text(out)
+    # the stall's two 10 W lamps on a 12.8 V pack run over their rating, and the cable drops
+    # more than 3 % (common practice for a low-voltage feed): both are warnings
+    assert text.count("Warning:") >= 3
+    assert "above its 3 % limit" in text
+
+
+def test_print_puts_the_sketch_on_the_printer_page(qtbot, tmp_path):
+    win = open_window(qtbot, tmp_path, one_loop(), name="loop.lwsk", active=True)
+    out = tmp_path / "printed.pdf"
+
+    def pdf_printer():
+        printer = QPrinter(QPrinter.PrinterMode.HighResolution)
+        printer.setOutputFormat(QPrinter.OutputFormat.PdfFormat)
+        printer.setOutputFileName(str(out))
+        return printer
+
+    win.choose_printer = pdf_printer  # the print dialog, answered
+    qtbot.keyClick(win, Qt.Key.Key_P, Qt.KeyboardModifier.ControlModifier)
+    text, pages = _text(out)
+    assert len(pages) == 1 and "loop.lwsk" in text
+    assert "40.0 mA" in text  # Ohm's law: 12 V / (100 + 200) Ω
+
+
+def test_a_dark_window_prints_ink_on_white(qtbot, tmp_path):
+    win = open_window(qtbot, tmp_path, one_loop())
+    use_scheme(DARK)
+    try:
+        win.scene.refresh_looks()
+        image = QImage(800, 560, QImage.Format.Format_RGB32)
+        image.fill(Qt.GlobalColor.white)
+        painter = QPainter(image)
+        paint_page(win.scene, painter, QRectF(20, 20, 760, 520), "loop", page_notes([]))
+        painter.end()
+        assert current_theme() is DARK  # the window keeps its scheme
+    finally:
+        use_scheme(None)
+    px = np.frombuffer(image.constBits(), np.uint8).reshape(560, image.bytesPerLine())[:, :3200].reshape(560, 800, 4)
+    rgb = px[..., 2::-1][..., :3].astype(int)
+    drawing = rgb[80:440, 40:760]  # between the title line and the notes: the drawing alone
+
+    def near(colour, within: int) -> np.ndarray:
+        return np.abs(drawing - np.array([colour.red(), colour.green(), colour.blue()])).sum(axis=2) < within
+
+    assert not near(DARK.paper, 12).any() and not near(DARK.tag, 12).any()  # no dark scheme fills
+    assert near(LIGHT.ink, 40).sum() > 200  # the light scheme's dark ink
+    assert (drawing.sum(axis=2) > 750).mean() > 0.8  # on white
