@@ -241,16 +241,42 @@ class PartItem(OnPaper):
         row = max(k - 1, 0) if self.horizontal else k  # across, designator and value share the first row
         return self._row_rect(row + self._extra if k >= 2 else row, width)
 
-    def _row_rect(self, row: int, width: float) -> QRectF:
-        """Row ``row`` of the part's text (rows run away from the body across, downward upright)."""
+    def _row_rect(self, row: int, width: float, side: int | None = None) -> QRectF:
+        """Row ``row`` of the part's text (rows run away from the body across, downward upright),
+        on ``side`` (default: the side it is on)."""
+        side = self.side if side is None else side
         h = self._fm.height()
         c, out = self.centre, self.outline
         if self.horizontal:
-            y = out.bottom() - 2 + row * h if self.side > 0 else out.top() + 2 - (row + 1) * h
+            y = out.bottom() - 2 + row * h if side > 0 else out.top() + 2 - (row + 1) * h
             return QRectF(c.x() - width / 2, y, width, h)
         y = c.y() - (2 + self._extra / 2) * h + row * h  # the rows centred on the body
-        x = out.right() + 2 if self.side > 0 else out.left() - 2 - width
+        x = out.right() + 2 if side > 0 else out.left() - 2 - width
         return QRectF(x, y, width, h)
+
+    MARK_WIDTH = 64.0  # about the widest current or drop mark, its arrow included
+
+    def text_block(self, side: int | None = None) -> QRectF:
+        """The scene box of the part's text rows and its current and drop marks on ``side``
+        (-1 above or left, +1 below or right; default: the side it is on); empty for a part
+        with no text (ground). Worked out with the layout: crowded drawings ask often."""
+        return self._blocks[self.side if side is None else side]
+
+    def _text_blocks(self) -> dict[int, QRectF]:
+        if not self.lines:
+            return {-1: QRectF(), 1: QRectF()}
+        width = max(self.label_rect.width(), self.MARK_WIDTH)
+        last = len(self.lines) + 1  # the text's rows, then the current's and the drop's (``line_rect``)
+        return {side: self._row_rect(0, width, side).united(self._row_rect(last, width, side)).translated(self.pos())
+                for side in (-1, 1)}
+
+    def body_box(self) -> QRectF:
+        """The scene box of the symbol."""
+        return self._body_box
+
+    def reach_box(self) -> QRectF:
+        """The scene box of the symbol and its text block on either side."""
+        return self._reach_box
 
     def set_flagged(self, flagged: bool) -> None:
         if flagged != self.flagged:
@@ -289,6 +315,9 @@ class PartItem(OnPaper):
         rect = self.outline.united(self.label_rect) if self.lines else QRectF(self.outline)
         pad = 14 if self.flagged else 6  # room for the fault frame's warning sign
         self._bounds = rect.adjusted(-pad, -pad, pad, pad)
+        self._blocks = self._text_blocks()
+        self._body_box = self.outline.translated(self.pos())
+        self._reach_box = self._body_box.united(self._blocks[-1]).united(self._blocks[1])
 
     def _label_rect(self) -> QRectF:
         if not self.lines:

@@ -17,6 +17,7 @@ from PySide6.QtWidgets import QGraphicsItem, QGraphicsScene, QStyleOptionGraphic
 
 from ..sketch.model import Sketch
 from .annotations import CurrentMark, DropMark, FaultNote, LoopMark, PotentialTag, ReadingLayer, marks_meeting
+from .label_sides import LabelSides
 from .items import COVER_TEXT, TEXT_LOD, Box, JunctionLayer, LooseEnd, OnPaper, PartItem, WireItem, paint_on_paper, to_scene
 from .symbols import IEC
 from .theme import GRID
@@ -36,7 +37,7 @@ class SketchScene(QGraphicsScene):
         self.part_items: dict[str, PartItem] = {}
         self._shown: dict[str, object] = {}  # the part each item shows, by name (compared by identity)
         self._axis: dict[str, tuple[bool, float]] = {}  # per part: horizontal, where its body lies
-        self._middle: tuple[float, float] | None = None  # the middle of the drawing labels face away from
+        self._sides = LabelSides()  # which side of its symbol each part's text goes
         self._marked: dict[str, tuple[PartItem, object]] = {}  # per part: the item and reading its marks show
         self._owed: dict[str, tuple[PartItem, object]] = {}  # per part out of sight: the reading still to show
         self._clear_in: dict[int, QRectF] = {}  # per view: an area no owed reading lies in (``lay_owed``)
@@ -139,10 +140,12 @@ class SketchScene(QGraphicsScene):
         shown = self._shown
         parts = self.sketch.parts
         changed = [p for p in parts if shown.get(p.name) is not p]
+        gone: list[QRectF] = []  # where parts that left reached
         fresh = sum(1 for p in changed if p.name not in shown)
         if len(shown) - (len(parts) - fresh):  # some shown parts are gone
             current = {p.name for p in parts}
             for name in [n for n in shown if n not in current]:
+                gone += self._sides.forget(name)
                 del shown[name]
                 self._axis.pop(name, None)
                 self._marked.pop(name, None)
@@ -160,7 +163,7 @@ class SketchScene(QGraphicsScene):
             shown[name] = part
             self._new_parts.add(name)
             self._axis[name] = self._label_axis(item)
-        self._orient_labels(parts, {p.name for p in changed})
+        self._orient_labels(parts, {p.name for p in changed}, gone)
         return changed
 
     def _remove_part_item(self, item: PartItem) -> None:
@@ -174,26 +177,15 @@ class SketchScene(QGraphicsScene):
             return True, item.pos().y() + item.centre.y()
         return False, item.pos().x() + item.centre.x()
 
-    def _orient_labels(self, parts, changed: set[str]) -> None:
-        """Put each part's text on the side facing away from the middle of the drawing.
-
-        Only the parts in ``changed`` are looked at unless the middle moved, and then only
-        parts whose side flips are touched.
-        """
+    def _orient_labels(self, parts, changed: set[str], gone: list[QRectF] = ()) -> None:
+        """Put each part's text on the side facing away from the middle of the drawing, or on
+        the other where that one is crowded (``label_sides``); ``gone``: where parts that left
+        reached."""
         if not parts:
-            self._middle = None
+            self._sides.middle = None
             return
-        cx = sum(p.x for p in parts) / len(parts) * GRID
-        cy = sum(p.y for p in parts) / len(parts) * GRID
-        names = changed if self._middle == (cx, cy) else self._axis.keys()
-        self._middle = (cx, cy)
-        items, axis = self.part_items, self._axis
-        for name in names:
-            horizontal, at = axis[name]
-            side = (-1 if at <= cy else 1) if horizontal else (1 if at >= cx else -1)
-            item = items[name]
-            if item.side != side:
-                item.set_side(side)
+        middle = (sum(p.x for p in parts) / len(parts) * GRID, sum(p.y for p in parts) / len(parts) * GRID)
+        self._sides.orient(self.part_items, self._axis, middle, changed, gone)
 
     def _sync_wires(self) -> list:
         """Patch the wire items as ``_sync_parts`` does the parts; returns the wires new or replaced."""
@@ -318,6 +310,7 @@ class SketchScene(QGraphicsScene):
         elif layer == "descriptions":
             for item in self.part_items.values():
                 item.set_described(on)
+            self._orient_labels(self.sketch.parts, set(self.part_items))  # every text block changed
         if on and layer in ("currents", "drops", "descriptions") and self.solved:
             self._place_clear_of_new_texts()
 
