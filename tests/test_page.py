@@ -20,9 +20,9 @@ from PySide6.QtPrintSupport import QPrinter  # noqa: E402
 
 from app.assess import DISCLAIMER  # noqa: E402
 from app.cli import main  # noqa: E402
-from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
 from app.ui.page import paint_page, page_notes  # noqa: E402
 from app.ui.theme import DARK, LIGHT, current_theme, use_scheme  # noqa: E402
+from test_ui_window import one_loop  # noqa: E402  (12 V across 100 Ω and 200 Ω in series)
 from ui_support import open_window  # noqa: E402
 
 DEMOS = Path(__file__).resolve().parent.parent / "demo_circuits"
@@ -33,17 +33,6 @@ def _text(path: Path) -> tuple[str, list]:
     reader = pypdf.PdfReader(str(path))
     # pypdf may split words with tabs and keep the font's ligatures ("ﬁ"): spaces and NFKC
     return " ".join(unicodedata.normalize("NFKC", reader.pages[0].extract_text()).split()), reader.pages
-
-
-def one_loop() -> Sketch:
-    """A 12 V cell driving 100 Ω and 200 Ω in series."""
-    s = Sketch()
-    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 12.0}))
-    s.add_part(PlacedPart("resistor", "R1", 0, 0, 0, False, {"resistance": 100.0}))
-    s.add_part(PlacedPart("resistor", "R2", 4, 0, 90, False, {"resistance": 200.0}))
-    s.add_wire(Wire(0, 4, 4, 4))
-    s.add_part(PlacedPart("ground", "GND1", 0, 4))
-    return s
 
 
 def test_shot_writes_one_a4_page_with_the_solution_and_the_disclaimer(capsys, tmp_path):

@@ -15,6 +15,7 @@ from PySide6.QtCore import QPointF, QRectF, Qt  # noqa: E402
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
 from app.ui.items import OnPaper, to_scene  # noqa: E402
 from app.ui.view import WIRE  # noqa: E402
+from test_ui_live_solver import lattice  # noqa: E402
 from ui_support import open_window  # noqa: E402
 
 
@@ -27,24 +28,6 @@ def ring_sketch() -> Sketch:
     s.add_wire(Wire(0, 0, 4, 0))
     s.add_wire(Wire(8, 0, 12, 0))
     s.add_wire(Wire(0, 4, 12, 4))
-    return s
-
-
-def lattice(rows: int = 4, cols: int = 5) -> Sketch:
-    """Resistors butted end to end in a rows × cols lattice, fed by a cell in its corner."""
-    s = Sketch()
-    k = 0
-    for r in range(rows):
-        for c in range(cols - 1):
-            k += 1
-            s.add_part(PlacedPart("resistor", f"R{k}", 4 * c, 4 * r, 0, False, {"resistance": 100.0 * k}))
-    for r in range(rows - 1):
-        for c in range(cols):
-            k += 1
-            if r == 0 and c == 0:
-                s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 12.0, "internal_resistance": 0.1}))
-            else:
-                s.add_part(PlacedPart("resistor", f"R{k}", 4 * c, 4 * r, 90, False, {"resistance": 100.0 * k}))
     return s
 
 
@@ -70,7 +53,7 @@ def test_zoomed_in_the_view_scrolls_into_free_paper_on_every_side(qtbot, tmp_pat
 
 
 def test_a_part_dragged_out_past_the_drawing_repaints_only_around_it(qtbot, tmp_path, monkeypatch):
-    sketch = lattice()
+    sketch = lattice(4, 5)
     win = open_window(qtbot, tmp_path, sketch, size=(900, 700))
     win.view.zoom_fit()
     qtbot.wait(50)
