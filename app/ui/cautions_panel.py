@@ -15,10 +15,10 @@ from PySide6.QtWidgets import QCheckBox, QLabel, QListWidget, QListWidgetItem, Q
 from ..assess import DISCLAIMER, Caution
 from .theme import current_theme
 
-__all__ = ["CautionsPanel", "SEVERITY_WORDS"]
+__all__ = ["CautionsPanel", "SEVERITY_WORDS", "SEVERITY_ORDER"]
 
 SEVERITY_WORDS = {"danger": "Danger", "warning": "Warning", "info": "Note"}
-_ORDER = {"danger": 0, "warning": 1, "info": 2}
+SEVERITY_ORDER = {"danger": 0, "warning": 1, "info": 2}  # most severe first
 
 
 def _icon(severity: str) -> QIcon:
@@ -74,7 +74,7 @@ class CautionsPanel(QWidget):
 
     def set_cautions(self, cautions: list[Caution], problem: str = "") -> None:
         """Show ``cautions`` (most severe first); ``problem`` says why there are none to show."""
-        self.cautions = sorted(cautions, key=lambda c: _ORDER.get(c.severity, 3))
+        self.cautions = sorted(cautions, key=lambda c: SEVERITY_ORDER.get(c.severity, 3))
         self._problem = problem
         self._fill()
 

@@ -16,20 +16,19 @@ from PySide6.QtCore import QMarginsF, QRectF, Qt
 from PySide6.QtGui import QColor, QFont, QFontMetricsF, QPageLayout, QPageSize, QPainter, QPdfWriter
 
 from ..assess import DISCLAIMER, Caution
-from .cautions_panel import SEVERITY_WORDS
+from .cautions_panel import SEVERITY_ORDER, SEVERITY_WORDS
 from .scene import SketchScene
 from .theme import PRINT, scheme_for
 
 __all__ = ["paint_page", "write_pdf", "page_notes", "MOST_NOTES"]
 
 MOST_NOTES = 12  # cautions listed on the page; the rest are counted
-_ORDER = {"danger": 0, "warning": 1, "info": 2}
 
 
 def page_notes(cautions: list[Caution]) -> list[str]:
     """The lines under the drawing: the cautions, most severe first (notes left out), then
     the disclaimer."""
-    shown = sorted((c for c in cautions if c.severity != "info"), key=lambda c: _ORDER.get(c.severity, 3))
+    shown = sorted((c for c in cautions if c.severity != "info"), key=lambda c: SEVERITY_ORDER.get(c.severity, 3))
     lines = [f"{SEVERITY_WORDS.get(c.severity, c.severity)}: {c.message}" for c in shown[:MOST_NOTES]]
     if len(shown) > MOST_NOTES:
         lines.append(f"… and {len(shown) - MOST_NOTES} more cautions: see the Cautions panel.")
@@ -59,7 +58,6 @@ def paint_page(scene: SketchScene, painter: QPainter, page: QRectF, title: str, 
     painter.setFont(body)
     painter.drawText(top, Qt.AlignmentFlag.AlignRight | Qt.AlignmentFlag.AlignVCenter,
                      f"Loopwright · {datetime.date.today().isoformat()}")
-    painter.setFont(body)
     flags = Qt.TextFlag.TextWordWrap | Qt.AlignmentFlag.AlignLeft
     heights = [bm.boundingRect(QRectF(0, 0, page.width(), 1e6), int(flags), line).height() for line in notes]
     below = sum(heights) + gap * (len(notes) + 1)
