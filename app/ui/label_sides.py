@@ -14,16 +14,16 @@ scene patched edit by edit reads as one drawn afresh), yet an edit settles only 
 whose surroundings changed: those are taken in the pass's order, and a part that turns to
 its other side passes the question on to its neighbours later in the order (``orient``).
 
-Boxes are kept in numpy arrays, one row per part, so asking what meets a box is one
-comparison over all parts (the scene's own index measures every item just added or moved,
-which on opening a document is every item, for every question).
+Parts are filed by the grid cells their text blocks and symbol reach, so asking what meets
+a box looks at the parts near it (the scene's own index measures every item just added or
+moved, which on opening a document is every item, for every question).
 """
 from __future__ import annotations
 
 import heapq
+import math
 import re
 
-import numpy as np
 from PySide6.QtCore import QRectF
 
 __all__ = ["LabelSides", "order_key"]
@@ -36,17 +36,11 @@ def order_key(name: str) -> tuple:
     return tuple(int(t) if t.isdigit() else t for t in _NUMBER.split(name))
 
 
-def _row(r: QRectF) -> tuple[float, float, float, float]:
-    return (r.left(), r.top(), r.right(), r.bottom()) if not r.isEmpty() else (np.nan,) * 4
-
-
-def _box(row: np.ndarray) -> QRectF | None:
-    return None if np.isnan(row[0]) else QRectF(row[0], row[1], row[2] - row[0], row[3] - row[1])
-
-
 def _overlap(a: QRectF, b: QRectF) -> float:
+    if not a.intersects(b):
+        return 0.0
     common = a.intersected(b)
-    return 0.0 if common.isEmpty() else common.width() * common.height()
+    return common.width() * common.height()
 
 
 class LabelSides:
@@ -54,62 +48,53 @@ class LabelSides:
 
     SETTLE_ALL_FROM = 50  # parts whose surroundings changed; from this many every part is settled
 
+    CELL = 128.0  # scene units: each part is filed under the cells its reach covers
+
     def __init__(self) -> None:
         self.middle: tuple[float, float] | None = None
         self._away: dict[str, int] = {}  # per part: its side away from the middle
         self._shapes: dict[str, tuple] = {}  # per part: its symbol's box and text blocks when last settled
         self._key: dict[str, tuple] = {}
-        self._slot: dict[str, int] = {}
-        self._names: list[str | None] = []
-        self._free: list[int] = []
-        self._reach = np.full((0, 4), np.nan)  # per slot: the part's symbol and both text blocks
+        self._reach: dict[str, QRectF] = {}  # per part: the box around its symbol and both text blocks
+        self._cells: dict[tuple[int, int], set[str]] = {}
 
-    # -- the array ------------------------------------------------------------------------
-    def _slot_of(self, name: str) -> int:
-        k = self._slot.get(name)
-        if k is None:
-            if not self._free:
-                n = len(self._names)
-                grow = max(16, n)
-                self._reach = np.vstack((self._reach, np.full((grow, 4), np.nan)))
-                self._names += [None] * grow
-                self._free = list(range(n + grow - 1, n - 1, -1))
-            k = self._slot[name] = self._free.pop()
-            self._names[k] = name
-            self._key[name] = order_key(name)
-        return k
+    # -- where the parts reach ---------------------------------------------------------------
+    def _cells_of(self, box: QRectF) -> list[tuple[int, int]]:
+        c = self.CELL
+        x0, x1 = math.floor(box.left() / c), math.floor(box.right() / c)
+        y0, y1 = math.floor(box.top() / c), math.floor(box.bottom() / c)
+        return [(x, y) for x in range(x0, x1 + 1) for y in range(y0, y1 + 1)]
+
+    def _file(self, name: str, reach: QRectF | None) -> QRectF | None:
+        """File part ``name`` under the cells ``reach`` covers (None: under none); where it reached."""
+        was = self._reach.pop(name, None)
+        if was is not None:
+            for cell in self._cells_of(was):
+                self._cells[cell].discard(name)
+        if reach is not None and not reach.isEmpty():
+            self._reach[name] = reach
+            for cell in self._cells_of(reach):
+                self._cells.setdefault(cell, set()).add(name)
+        return was
 
     def forget(self, name: str) -> list[QRectF]:
         """Part ``name`` has left the drawing; where it reached (its neighbours to settle again)."""
         self._away.pop(name, None)
         self._shapes.pop(name, None)
         self._key.pop(name, None)
-        k = self._slot.pop(name, None)
-        if k is None:
-            return []
-        was = _box(self._reach[k])
-        self._reach[k] = np.nan
-        self._names[k] = None
-        self._free.append(k)
+        was = self._file(name, None)
         return [] if was is None else [was]
 
     def _reaching(self, box: QRectF) -> list[str]:
-        """The parts whose symbol or text block on either side meets ``box``."""
+        """The parts whose symbol or text block on either side meets ``box``, in settling order
+        (so that sums over them come out the same to the last bit however they were filed)."""
         if box.isEmpty():
             return []
-        r = self._reach
-        with np.errstate(invalid="ignore"):
-            hit = (r[:, 0] < box.right()) & (r[:, 2] > box.left()) & (r[:, 1] < box.bottom()) & (r[:, 3] > box.top())
-        names = self._names
-        return [names[k] for k in np.flatnonzero(hit).tolist()]
+        cells, reach = self._cells, self._reach
+        near = set().union(*(cells.get(cell, ()) for cell in self._cells_of(box)))
+        return sorted((n for n in near if reach[n].intersects(box)), key=self._key.__getitem__)
 
     # -- the sides --------------------------------------------------------------------------
-    @staticmethod
-    def away_side(horizontal: bool, at: float, cx: float, cy: float) -> int:
-        """The side facing away from the middle (cx, cy) of a part lying ``horizontal`` with its
-        body at scene ``at`` (y across, x upright): -1 above or left, +1 below or right."""
-        return (-1 if at <= cy else 1) if horizontal else (1 if at >= cx else -1)
-
     def orient(self, items: dict, axis: dict[str, tuple[bool, float]], middle: tuple[float, float],
                changed: set[str], gone: list[QRectF] = ()) -> None:
         """Settle the side of every part the edit may have moved to the other side.
@@ -124,8 +109,9 @@ class LabelSides:
         away = self._away
         unsettled = set(changed)
         touched = list(gone)  # where what neighbours see changed
-        for name in names:
-            side = self.away_side(*axis[name], cx, cy)
+        for name in names:  # the side away from the middle: above or left of it -1, else +1
+            horizontal, at = axis[name]
+            side = (-1 if at <= cy else 1) if horizontal else (1 if at >= cx else -1)
             if away.get(name) != side:
                 away[name] = side
                 unsettled.add(name)
@@ -134,14 +120,14 @@ class LabelSides:
             item = items[name]
             shapes = (item.body_box(), item.text_block(-1), item.text_block(1))
             if self._shapes.get(name) != shapes:
-                k = self._slot_of(name)
-                was = _box(self._reach[k])
+                self._key.setdefault(name, order_key(name))
+                was = self._file(name, item.reach_box())
                 if was is not None:
                     touched.append(was)
                 touched.append(item.reach_box())
-                self._reach[k] = _row(item.reach_box())
                 self._shapes[name] = shapes
-        if len(unsettled) >= self.SETTLE_ALL_FROM:
+        everyone = len(unsettled) >= self.SETTLE_ALL_FROM
+        if everyone:
             unsettled = set(items)
         else:
             for box in touched:
@@ -154,8 +140,8 @@ class LabelSides:
             k, name = heapq.heappop(queue)
             item = items[name]
             before = item.text_block()
-            if not self._settle(items, item, name, k):
-                continue
+            if not self._settle(items, item, name, k) or everyone:
+                continue  # (settling every part, every one is queued already)
             # those settled after it see it where it now stands
             for box in (before, item.text_block()):
                 for other in self._reaching(box):
