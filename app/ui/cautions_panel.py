@@ -15,10 +15,20 @@ from PySide6.QtWidgets import QCheckBox, QLabel, QListWidget, QListWidgetItem, Q
 from ..assess import DISCLAIMER, Caution
 from .theme import current_theme
 
-__all__ = ["CautionsPanel", "SEVERITY_WORDS", "SEVERITY_ORDER"]
+__all__ = ["CautionsPanel", "SEVERITY_WORDS", "most_severe_first", "caution_line"]
 
 SEVERITY_WORDS = {"danger": "Danger", "warning": "Warning", "info": "Note"}
-SEVERITY_ORDER = {"danger": 0, "warning": 1, "info": 2}  # most severe first
+_ORDER = {"danger": 0, "warning": 1, "info": 2}
+
+
+def most_severe_first(cautions) -> list[Caution]:
+    """``cautions`` sorted most severe first (dangers, warnings, then notes)."""
+    return sorted(cautions, key=lambda c: _ORDER.get(c.severity, 3))
+
+
+def caution_line(c: Caution) -> str:
+    """The caution as one line, its severity in words first ("Warning: …")."""
+    return f"{SEVERITY_WORDS.get(c.severity, c.severity)}: {c.message}"
 
 
 def _icon(severity: str) -> QIcon:
@@ -74,7 +84,7 @@ class CautionsPanel(QWidget):
 
     def set_cautions(self, cautions: list[Caution], problem: str = "") -> None:
         """Show ``cautions`` (most severe first); ``problem`` says why there are none to show."""
-        self.cautions = sorted(cautions, key=lambda c: SEVERITY_ORDER.get(c.severity, 3))
+        self.cautions = most_severe_first(cautions)
         self._problem = problem
         self._fill()
 
@@ -89,7 +99,7 @@ class CautionsPanel(QWidget):
         self.list.blockSignals(True)
         self.list.clear()
         for c in shown:
-            item = QListWidgetItem(_icon(c.severity), f"{SEVERITY_WORDS.get(c.severity, c.severity)}: {c.message}")
+            item = QListWidgetItem(_icon(c.severity), caution_line(c))
             item.setData(Qt.ItemDataRole.UserRole, list(c.parts))
             item.setToolTip(", ".join(c.parts) if c.parts else "")
             self.list.addItem(item)

@@ -8,8 +8,8 @@ import sys
 from pathlib import Path
 
 from PySide6.QtCore import QEvent, QItemSelection, QItemSelectionModel, QRectF, QSettings, Qt, QTimer, Signal
-from PySide6.QtGui import (QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QPageLayout,
-                           QPainter, QUndoStack)
+from PySide6.QtGui import (QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QPainter,
+                           QUndoStack)
 from PySide6.QtPrintSupport import QPrintDialog, QPrinter
 from PySide6.QtWidgets import (QApplication, QDialog, QFileDialog, QLabel, QMainWindow,
                                QMessageBox, QSizePolicy, QVBoxLayout, QWidget)
@@ -25,7 +25,7 @@ from .hand_analysis import HandAnalysis
 from .heap import RestCollector
 from .help_dialog import KeysDialog, show_about
 from .icons import tool_icon
-from .page import page_notes, paint_page
+from .page import page_notes, page_turn, paint_page
 from .parts_bar import PartsBar
 from .properties import InlineValueEditor, PartPanel
 from .readings import ReadingsModel, ReadingsView
@@ -637,9 +637,7 @@ class MainWindow(QMainWindow):
         drawing's shape to begin with (None: the dialog was cancelled)."""
         printer = QPrinter(QPrinter.PrinterMode.HighResolution)
         printer.setDocName(self._page_title())
-        rect = self.scene.content_rect()
-        printer.setPageOrientation(QPageLayout.Orientation.Landscape if rect.width() >= rect.height()
-                                   else QPageLayout.Orientation.Portrait)
+        printer.setPageOrientation(page_turn(self.scene))
         dialog = QPrintDialog(printer, self)
         return printer if dialog.exec() == QDialog.DialogCode.Accepted else None
 

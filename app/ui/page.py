@@ -13,14 +13,14 @@ import os
 from pathlib import Path
 
 from PySide6.QtCore import QMarginsF, QRectF, Qt
-from PySide6.QtGui import QColor, QFont, QFontMetricsF, QPageLayout, QPageSize, QPainter, QPdfWriter
+from PySide6.QtGui import QFont, QFontMetricsF, QPageLayout, QPageSize, QPainter, QPdfWriter
 
 from ..assess import DISCLAIMER, Caution
-from .cautions_panel import SEVERITY_ORDER, SEVERITY_WORDS
+from .cautions_panel import caution_line, most_severe_first
 from .scene import SketchScene
 from .theme import PRINT, scheme_for
 
-__all__ = ["paint_page", "write_pdf", "page_notes", "MOST_NOTES"]
+__all__ = ["paint_page", "write_pdf", "page_notes", "page_turn", "MOST_NOTES"]
 
 MOST_NOTES = 12  # cautions listed on the page; the rest are counted
 
@@ -28,10 +28,10 @@ MOST_NOTES = 12  # cautions listed on the page; the rest are counted
 def page_notes(cautions: list[Caution]) -> list[str]:
     """The lines under the drawing: the cautions, most severe first (notes left out), then
     the disclaimer."""
-    shown = sorted((c for c in cautions if c.severity != "info"), key=lambda c: SEVERITY_ORDER.get(c.severity, 3))
-    lines = [f"{SEVERITY_WORDS.get(c.severity, c.severity)}: {c.message}" for c in shown[:MOST_NOTES]]
+    shown = most_severe_first(c for c in cautions if c.severity != "info")
+    lines = [caution_line(c) for c in shown[:MOST_NOTES]]
     if len(shown) > MOST_NOTES:
-        lines.append(f"… and {len(shown) - MOST_NOTES} more cautions: see the Cautions panel.")
+        lines.append(f"… and {len(shown) - MOST_NOTES} more cautions.")
     return lines + [DISCLAIMER]
 
 
@@ -84,10 +84,15 @@ def paint_page(scene: SketchScene, painter: QPainter, page: QRectF, title: str, 
         painter.restore()
 
 
-def write_pdf(scene: SketchScene, path: str | os.PathLike[str], title: str, notes: list[str]) -> None:
-    """Write the page (``paint_page``) as a one-page PDF: A4, turned to suit the drawing's shape."""
+def page_turn(scene: SketchScene) -> QPageLayout.Orientation:
+    """Which way to turn the sheet for the drawing: across (landscape) unless it is taller than wide."""
     rect = scene.content_rect()
-    turned = QPageLayout.Orientation.Landscape if rect.width() >= rect.height() else QPageLayout.Orientation.Portrait
+    return QPageLayout.Orientation.Landscape if rect.width() >= rect.height() else QPageLayout.Orientation.Portrait
+
+
+def write_pdf(scene: SketchScene, path: str | os.PathLike[str], title: str, notes: list[str]) -> None:
+    """Write the page (``paint_page``) as a one-page PDF: A4, turned to suit the drawing (``page_turn``)."""
+    turned = page_turn(scene)
     writer = QPdfWriter(str(path))
     writer.setResolution(300)
     writer.setTitle(title)
@@ -99,7 +104,7 @@ def write_pdf(scene: SketchScene, path: str | os.PathLike[str], title: str, note
         raise OSError(f"Could not write the PDF file {Path(path)}.")
     try:
         area = writer.pageLayout().paintRectPixels(writer.resolution())
-        painter.fillRect(QRectF(0, 0, area.width(), area.height()), QColor("white"))
+        painter.fillRect(QRectF(0, 0, area.width(), area.height()), PRINT.paper)
         paint_page(scene, painter, QRectF(0, 0, area.width(), area.height()), title, notes)
     finally:
         painter.end()

@@ -95,13 +95,13 @@ class SketchScene(QGraphicsScene):
         wires = self._sync_wires()
         points = [(p.x, p.y) for p in parts]
         points += [end for w in wires for end in w.ends]
-        self.reach(points)
+        self.extend_paper(points)
         self.documentChanged.emit()
 
     # -- the paper --------------------------------------------------------------
     PAPER_MARGIN = 1200.0  # scene units of free paper kept beyond the drawing on every side
 
-    def reach(self, points: list[tuple[int, int]]) -> None:
+    def extend_paper(self, points: list[tuple[int, int]]) -> None:
         """Let the paper (the scene rect the views scroll over) reach past grid ``points``.
 
         The paper reaches ``PAPER_MARGIN`` past the drawing, so a person can scroll into free

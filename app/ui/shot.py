@@ -15,7 +15,7 @@ from .page import page_notes, write_pdf
 from .scene import SketchScene
 from .solve_worker import solve_sketch
 from .symbols import IEC
-from .theme import LIGHT, current_theme, set_theme
+from .theme import LIGHT, current_theme, scheme_for
 
 __all__ = ["render", "render_scene", "ensure_app", "PICTURE_TYPES"]
 
@@ -88,8 +88,7 @@ def render(path_in: str | os.PathLike[str], path_out: str | os.PathLike[str]) ->
         raise ValueError(f"Pictures can be written as .png, .svg or .pdf, not '{Path(path_out).suffix or path_out}'.")
     sketch = load_sketch(path_in)
     ensure_app()
-    set_theme(LIGHT)
-    try:
+    with scheme_for(LIGHT):
         scene = SketchScene(sketch, IEC)
         result = solve_sketch(sketch)
         marks = BenchMarks(scene, scene.part_items)  # cautions and meter displays, as in the window
@@ -97,5 +96,3 @@ def render(path_in: str | os.PathLike[str], path_out: str | os.PathLike[str]) ->
         scene.show_result(result)  # after the badges, so loop marks are placed clear of them
         render_scene(scene, path_out, title=Path(path_in).name,
                      cautions=result.assessment if not result.error else [])
-    finally:
-        set_theme(None)

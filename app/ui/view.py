@@ -177,7 +177,7 @@ class CanvasView(QGraphicsView):
         """Put the keyboard cursor (and the part or wire being drawn) on ``point``."""
         self.cursor_point = point
         if self.editor is not None:
-            self.sketch_scene.reach([point])  # keys can walk the cursor off the paper's edge
+            self.sketch_scene.extend_paper([point])  # keys can walk the cursor off the paper's edge
         if self._cursor is not None:
             self._cursor.setPos(to_scene(point))
         self._update_ghost()
