@@ -10,13 +10,12 @@ from collections.abc import Mapping, Sequence
 from solver import Solution
 
 from .analysis.branches import node_labels
-from .assess import Caution
+from .assess import DISCLAIMER, Caution
 from .units import format_value
 
 __all__ = ["solution_dict", "solution_table", "caution_dict", "CAUTION"]
 
-CAUTION = ("Results come from an idealised linear DC model: they are no substitute for "
-           "measurement. Mains and high-energy work follows local codes and licensed practice.")
+CAUTION = DISCLAIMER  # the one disclaimer, as the window and the printed page show it
 
 
 def _shown(name: str) -> bool:
