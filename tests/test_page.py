@@ -99,3 +99,30 @@ def test_a_dark_window_prints_ink_on_white(qtbot, tmp_path):
     assert not near(DARK.paper, 12).any() and not near(DARK.tag, 12).any()  # no dark scheme fills
     assert near(LIGHT.ink, 40).sum() > 200  # the light scheme's dark ink
     assert (drawing.sum(axis=2) > 750).mean() > 0.8  # on white
+
+
+def test_printing_leaves_the_selection_off_the_page_and_in_the_window(qtbot, tmp_path):
+    win = open_window(qtbot, tmp_path, one_loop(), name="loop.lwsk", active=True)
+    qtbot.keyClick(win.view.viewport(), Qt.Key.Key_A, Qt.KeyboardModifier.ControlModifier)
+    chosen = win.scene.selected_parts()
+    assert len(chosen) == 4  # the cell, two resistors and the ground
+    image = QImage(800, 560, QImage.Format.Format_RGB32)
+    image.fill(Qt.GlobalColor.white)
+    painter = QPainter(image)
+    paint_page(win.scene, painter, QRectF(20, 20, 760, 520), "loop", page_notes([]))
+    painter.end()
+    px = np.frombuffer(image.constBits(), np.uint8).reshape(560, image.bytesPerLine())[:, :3200].reshape(560, 800, 4)
+    rgb = px[..., 2::-1][..., :3].astype(int)
+    select = np.array([LIGHT.select.red(), LIGHT.select.green(), LIGHT.select.blue()])
+    assert (np.abs(rgb - select).sum(axis=2) < 30).sum() < 20  # no selection outline on the sheet
+    assert win.scene.selected_parts() == chosen  # and the window keeps it
+
+    def pdf_printer():
+        printer = QPrinter(QPrinter.PrinterMode.HighResolution)
+        printer.setOutputFormat(QPrinter.OutputFormat.PdfFormat)
+        printer.setOutputFileName(str(tmp_path / "printed.pdf"))
+        return printer
+
+    win.choose_printer = pdf_printer
+    qtbot.keyClick(win, Qt.Key.Key_P, Qt.KeyboardModifier.ControlModifier)
+    assert win.scene.selected_parts() == chosen

@@ -601,7 +601,6 @@ class MainWindow(QMainWindow):
         path, _ = QFileDialog.getSaveFileName(self, "Export picture", start,
                                               "PNG picture (*.png);;SVG drawing (*.svg);;PDF page with the cautions (*.pdf)")
         if path:
-            self.scene.clearSelection()
             try:
                 render_scene(self.scene, path, title=self._page_title(), cautions=self._cautions())
             except (ValueError, OSError) as e:
@@ -620,7 +619,6 @@ class MainWindow(QMainWindow):
         printer = self.choose_printer()
         if printer is None:
             return
-        self.scene.clearSelection()
         painter = QPainter()
         if not painter.begin(printer):
             self.tell("Cannot print", "The printer could not be started; check that it is on and free.")

@@ -271,11 +271,16 @@ class SketchScene(QGraphicsScene):
     def drawn_afresh(self) -> Iterator[None]:
         """Items paint themselves inside the block, not their cached screen pixels (nor the
         pictures of parts and shapes a view copies in, ``drawn_exactly``), so an SVG holds lines
-        and text, and a PNG or a printed page is drawn at its own resolution, to the last pixel."""
+        and text, and a PNG or a printed page is drawn at its own resolution, to the last pixel.
+        The selection is left out of the picture and given back afterwards, with no
+        selection signal: the person's work in the window goes on where it was."""
         items = self.items()
         modes = [i.cacheMode() for i in items]
         for i in items:
             i.setCacheMode(QGraphicsItem.CacheMode.NoCache)
+        chosen = self.selectedItems()
+        self.blockSignals(True)
+        self.clearSelection()
         self.drawn_exactly = True
         try:
             yield
@@ -283,6 +288,9 @@ class SketchScene(QGraphicsScene):
             self.drawn_exactly = False
             for i, mode in zip(items, modes):
                 i.setCacheMode(mode)
+            for i in chosen:
+                i.setSelected(True)
+            self.blockSignals(False)
 
     def drawBackground(self, painter: QPainter, rect: QRectF) -> None:  # noqa: N802 (Qt's name)
         """The drawing's wires and parts, which lie on the paper (``items.OnPaper``)."""
