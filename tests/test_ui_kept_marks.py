@@ -110,7 +110,7 @@ def test_kept_pictures_show_what_drawing_every_mark_shows_through_moves_values_a
         toggle()
         _canvas(win)  # painted
         assert any(p is not None for p in used), ("the pictures are the path under test", whole)
-        assert 0 < len(layer._hot) < len(layer._cell_of)
+        assert 0 < len(layer._hot) < sum(map(len, layer.tables))
         shown = _canvas(win)  # as the kept pictures drew it
         assert _off(shown, _from_nothing(win)) == 0, ("move with pictures", whole)
         assert _off(shown, _in_one_pass(win, monkeypatch)) == 0, ("move with pictures", whole)

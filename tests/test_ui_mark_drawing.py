@@ -230,13 +230,12 @@ def test_every_mark_draws_inside_the_box_it_asks_to_repaint(qtbot, tmp_path, par
     win = open_window(qtbot, tmp_path, grid_sketch(parts), size=(1100, 700))
     layer = win.scene._readings
     outside = []
-    for cells in layer._cells:
-        for filed in cells.values():
-            for m in filed.values():
-                if not m._visible:
-                    continue
-                left, top, right, bottom = m._scene_box
-                box = QRectF(left, top, right - left, bottom - top).adjusted(-0.5, -0.5, 0.5, 0.5)
-                if not box.contains(_drawn_extent(m, m.figure())):
-                    outside.append((type(m).__name__, m.text, box, _drawn_extent(m, m.figure())))
+    for table in layer.tables:
+        for m in table.marks:
+            if m is None or not m._visible:
+                continue
+            left, top, right, bottom = m._scene_box
+            box = QRectF(left, top, right - left, bottom - top).adjusted(-0.5, -0.5, 0.5, 0.5)
+            if not box.contains(_drawn_extent(m, m.figure())):
+                outside.append((type(m).__name__, m.text, box, _drawn_extent(m, m.figure())))
     assert not outside, outside[:3]

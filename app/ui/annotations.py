@@ -24,7 +24,7 @@ from .stamps import Stamp, Stamper, zooms_only
 from .theme import Theme, current_theme, small_font
 
 __all__ = ["CurrentMark", "DropMark", "ReadingLayer", "PotentialTag", "LoopMark", "FaultNote", "LAYERS",
-           "marks_meeting"]
+           "MarkTable", "marks_meeting"]
 
 LAYERS = {
     "currents": "Current arrows",
@@ -250,6 +250,7 @@ class _LayerPainted(QGraphicsItem):
     def _show(self, on: bool) -> None:
         if on != self._visible:
             self._visible = on
+            self.layer.tables[self.GROUP].show(self, on)
             self.setVisible(on)
             self.repaint()
 
@@ -536,14 +537,90 @@ def marks_meeting(marks: list, areas: np.ndarray) -> list:
     top, right, bottom), tested against every area at once."""
     if not marks:
         return marks
-    if len(areas) == 1:
-        left, top, right, bottom = areas[0].tolist()
-        return [m for m in marks if (b := m._scene_box)[2] >= left and b[0] <= right
-                and b[3] >= top and b[1] <= bottom]
     b = np.array([m._scene_box for m in marks])[:, :, None]
     a = areas.T[None]
     hit = ((b[:, 2] >= a[:, 0]) & (b[:, 0] <= a[:, 2]) & (b[:, 3] >= a[:, 1]) & (b[:, 1] <= a[:, 3])).any(axis=1)
     return [m for m, h in zip(marks, hit.tolist()) if h]
+
+
+class MarkTable:
+    """The scene boxes of one group's marks, a row each, and whether each is shown.
+
+    A repaint picks the shown marks whose boxes meet its areas in a few array operations
+    over every row: a value tried in a 200-part sketch seen whole repaints about 50
+    rectangles spread over the drawing, and a test per mark in Python cost more than
+    drawing the marks it found. Rows of marks gone are packed away once they outnumber
+    the rest.
+    """
+
+    def __init__(self) -> None:
+        self.marks: list = []  # per row: the mark, or None once it is gone
+        self._row: dict[int, int] = {}
+        self._boxes = np.zeros((64, 4))
+        self._shown = np.zeros(64, dtype=bool)
+        self._over = np.zeros(64, dtype=bool)  # drawn over the rest (``ReadingLayer._split``)
+
+    def __len__(self) -> int:
+        return len(self._row)
+
+    def put(self, mark, box: tuple[float, float, float, float]) -> None:
+        """File ``mark`` with scene box ``box`` (left, top, right, bottom)."""
+        row = self._row.get(id(mark))
+        if row is None:
+            row = self._row[id(mark)] = len(self.marks)
+            self.marks.append(mark)
+            if row == len(self._shown):
+                self._boxes = np.concatenate((self._boxes, np.zeros_like(self._boxes)))
+                self._shown = np.concatenate((self._shown, np.zeros_like(self._shown)))
+                self._over = np.concatenate((self._over, np.zeros_like(self._over)))
+            self._shown[row], self._over[row] = mark._visible, False
+        self._boxes[row] = box
+
+    def show(self, mark, on: bool) -> None:
+        """``mark`` is shown (``on``) or hidden from now on."""
+        row = self._row.get(id(mark))
+        if row is not None:
+            self._shown[row] = on
+
+    def drop(self, mark) -> None:
+        """``mark`` is gone from the drawing."""
+        row = self._row.pop(id(mark), None)
+        if row is None:
+            return
+        self.marks[row] = None
+        self._shown[row] = self._over[row] = False
+        if len(self.marks) > 2 * len(self._row) + 64:
+            live = [k for k, m in enumerate(self.marks) if m is not None]
+            self.marks = [self.marks[k] for k in live]
+            for a in (self._boxes, self._shown, self._over):
+                a[:len(live)] = a[live]
+            self._row = {id(m): k for k, m in enumerate(self.marks)}
+
+    def draw_over(self, marks) -> None:
+        """From now on ``marks`` (those of the table among them) are drawn over the rest."""
+        self._over[:] = False
+        row = self._row
+        self._over[[row[id(m)] for m in marks if id(m) in row]] = True
+
+    def meeting(self, areas: np.ndarray, over: bool | None = None) -> list:
+        """The shown marks whose boxes meet any of ``areas`` (rows of left, top, right, bottom),
+        in the order they were filed: those meeting the box around the areas, then those of
+        them meeting an area (every one at once). ``over``: only those drawn over the rest
+        (True) or only the others (False)."""
+        n = len(self.marks)
+        b = self._boxes[:n]
+        (left, top), (right, bottom) = areas[:, :2].min(axis=0), areas[:, 2:].max(axis=0)
+        shown = self._shown[:n]
+        if over is not None:
+            shown = shown & (self._over[:n] == over)
+        rows = np.flatnonzero(shown & (b[:, 2] >= left) & (b[:, 0] <= right)
+                              & (b[:, 3] >= top) & (b[:, 1] <= bottom))
+        if len(areas) > 1 and len(rows):
+            c, a = b[rows][:, :, None], areas.T[None]
+            rows = rows[((c[:, 2] >= a[:, 0]) & (c[:, 0] <= a[:, 2]) & (c[:, 3] >= a[:, 1])
+                         & (c[:, 1] <= a[:, 3])).any(axis=1)]
+        marks = self.marks
+        return [marks[k] for k in rows.tolist()]
 
 
 class ReadingLayer(QGraphicsItem):
@@ -554,7 +631,7 @@ class ReadingLayer(QGraphicsItem):
     hundreds of tiny items each cost a call into Python, a cached picture and a painter of
     their own on every change, where one item drawing them all costs little more than the
     texts and lines themselves. Marks ask for their box to be repainted (``repaint_mark``);
-    the layer files them by place (``CELL``) and draws those meeting the rectangles being
+    the layer files their boxes (``MarkTable``) and draws those meeting the rectangles being
     repainted (``_areas``), group by group (``GROUPS``), each group with one pen and brush.
 
     Marks that change together are drawn over the rest (see ``_split``): while a part is
@@ -570,10 +647,7 @@ class ReadingLayer(QGraphicsItem):
         self.setZValue(Z_MARK)
         self.setFlag(QGraphicsItem.GraphicsItemFlag.ItemUsesExtendedStyleOption, True)
         self.setAcceptedMouseButtons(Qt.MouseButton.NoButton)
-        # per group: cell -> {id: mark}; and each mark's cell
-        self._cells: tuple[dict[tuple[int, int], dict[int, QGraphicsItem]], ...] = tuple({} for _ in self.GROUPS)
-        self._cell_of: dict[int, tuple[int, int]] = {}
-        self._reach = (0.0, 0.0)  # the widest and the tallest box: how far back from an area to look
+        self.tables = tuple(MarkTable() for _ in self.GROUPS)  # per group: its marks' boxes
         self._bounds = QRectF()
         self._held: list[tuple[float, float, float, float]] | None = None
         self._held_marks: dict[int, QGraphicsItem] | None = None
@@ -639,6 +713,8 @@ class ReadingLayer(QGraphicsItem):
         self._hot_in = tuple({} for _ in self.GROUPS)
         for key, mark in changing.items():
             self._hot_in[mark.GROUP][key] = mark
+        for table, marks in zip(self.tables, self._hot_in):
+            table.draw_over(marks.values())
         self._split_count += 1
         scene = self.scene()
         for view in scene.views() if scene is not None else ():
@@ -693,28 +769,16 @@ class ReadingLayer(QGraphicsItem):
                 self._wanted.add(id(view))
                 viewport.update()
 
-    CELL = 256.0  # marks are filed by the cell of their box's top left corner, this size
-
     def place(self, mark, box: QRectF) -> None:
         """Paint ``mark`` (a part mark, a potential tag or a loop mark) in scene box ``box``
-        from now on; the layer files it by place, so a repaint looks at the marks in sight only."""
-        left, top, right, bottom = box.left(), box.top(), box.right(), box.bottom()
-        mark._scene_box = (left, top, right, bottom)
+        from now on (its group's ``MarkTable`` files it)."""
+        mark._scene_box = scene_box = (box.left(), box.top(), box.right(), box.bottom())
         # the layer's box only grows: a larger one costs nothing (an empty box, a mark with
         # nothing to show, is never contained: it would repaint the whole layer each time)
         if not box.isEmpty() and not self._bounds.contains(box):
             self.prepareGeometryChange()
             self._bounds = self._bounds.united(box)
-        self._reach = max(self._reach[0], right - left), max(self._reach[1], bottom - top)
-        cell = (math.floor(left / self.CELL), math.floor(top / self.CELL))
-        key = id(mark)
-        old = self._cell_of.get(key)
-        if old != cell:
-            cells = self._cells[mark.GROUP]
-            if old is not None:
-                cells[old].pop(key, None)
-            cells.setdefault(cell, {})[key] = mark
-            self._cell_of[key] = cell
+        self.tables[mark.GROUP].put(mark, scene_box)
 
     def forget(self, owner: PartItem) -> None:
         """Stop painting the marks of ``owner`` (it leaves the drawing)."""
@@ -723,28 +787,7 @@ class ReadingLayer(QGraphicsItem):
                 mark.repaint()
                 self._hot.pop(id(mark), None)
                 self._hot_in[mark.GROUP].pop(id(mark), None)
-                cell = self._cell_of.pop(id(mark), None)
-                if cell is not None:
-                    self._cells[mark.GROUP][cell].pop(id(mark), None)
-
-    def _in_sight(self, group: int, left: float, top: float, right: float, bottom: float) -> list:
-        """The visible marks of ``group`` whose boxes meet the area (from the cells it can reach)."""
-        c = self.CELL
-        x0, y0 = math.floor((left - self._reach[0]) / c), math.floor((top - self._reach[1]) / c)
-        x1, y1 = math.floor(right / c), math.floor(bottom / c)
-        cells = self._cells[group]
-        filed = [cells.get((x, y)) for x in range(x0, x1 + 1) for y in range(y0, y1 + 1)] \
-            if (x1 - x0 + 1) * (y1 - y0 + 1) < len(cells) else list(cells.values())
-        return [m for marks in filed if marks for m in marks.values()
-                if m._visible and (b := m._scene_box)[2] >= left and b[0] <= right
-                and b[3] >= top and b[1] <= bottom]
-
-    def _meeting(self, group: int, areas: np.ndarray) -> list:
-        """The visible marks of ``group`` meeting any of ``areas`` (rows of left, top, right,
-        bottom): those in sight of the box around them, tested against every area at once
-        (a move repaints hundreds)."""
-        (left, top, _, _), (_, _, right, bottom) = areas.min(axis=0).tolist(), areas.max(axis=0).tolist()
-        return marks_meeting(self._in_sight(group, left, top, right, bottom), areas)
+                self.tables[mark.GROUP].drop(mark)
 
     def boundingRect(self) -> QRectF:
         return self._bounds
@@ -881,13 +924,10 @@ class ReadingLayer(QGraphicsItem):
         """The visible marks of ``group`` meeting ``areas`` (rows of left, top, right, bottom):
         all (``_ALL``), those kept (``_KEPT``) or those drawn over them (``_HOT``)."""
         hot = self._hot_in[group]
-        if which == self._HOT and len(hot) * 2 < sum(map(len, self._cells[group].values())):
+        if which == self._HOT and len(hot) * 2 < len(self.tables[group]):
             marks = marks_meeting([m for m in hot.values() if m._visible], areas)  # fewer to look at
         else:
-            marks = self._in_sight(group, *areas[0].tolist()) if len(areas) == 1 else self._meeting(group, areas)
-            if which != self._ALL and hot:
-                drawn_over = which == self._HOT
-                marks = [m for m in marks if (id(m) in hot) == drawn_over]
+            marks = self.tables[group].meeting(areas, None if which == self._ALL or not hot else which == self._HOT)
         return marks
 
     def _paint_marks(self, painter: QPainter, group: int, marks: list, looks: tuple, exact: bool) -> None:
