@@ -94,3 +94,21 @@ def test_keys_walk_the_cursor_far_past_the_drawing_and_the_view_follows(qtbot, t
     assert win.view.cursor_point == (start[0] + 160, start[1])
     assert _seen(win).contains(to_scene(win.view.cursor_point))
     assert win.scene.sceneRect().contains(to_scene(win.view.cursor_point) + QPointF(400, 0))
+
+
+def test_zoom_to_fit_takes_the_paper_back_to_the_drawing_after_a_far_part_is_deleted(qtbot, tmp_path):
+    win = open_window(qtbot, tmp_path, ring_sketch(), size=(700, 500), active=True)
+    far = win.editor.place("resistor", 400, 300)  # 400 grid steps out: the paper grows to reach it
+    assert win.scene.sceneRect().contains(to_scene((400, 300)))
+    win.scene.select([far])
+    win.view.setFocus()
+    qtbot.keyClick(win.view, Qt.Key.Key_Delete)
+    assert far not in {p.name for p in win.sketch.parts}
+    assert win.scene.sceneRect().contains(to_scene((400, 300)))  # kept while editing: no jump
+    qtbot.keyClick(win.view, Qt.Key.Key_Home)  # Zoom to Fit
+    paper = win.scene.sceneRect()
+    drawing = QRectF(to_scene((0, 0)), to_scene((12, 4)))
+    assert paper.contains(drawing.adjusted(-400, -400, 400, 400))  # free paper on every side still
+    assert paper.width() < drawing.width() + 3 * win.scene.PAPER_MARGIN  # but not out to the part gone
+    win.stack.undo()  # the part comes back, and the paper reaches it again
+    assert win.scene.sceneRect().contains(to_scene((400, 300)))

@@ -121,6 +121,21 @@ class SketchScene(QGraphicsScene):
         self._paper = self._paper.united(box.adjusted(-m, -m, m, m))
         self.setSceneRect(self._paper)
 
+    def trim_paper(self) -> None:
+        """Take the paper back to ``PAPER_MARGIN`` past the drawing as it now is.
+
+        Zoom to Fit asks for it: after a large part of a drawing is deleted, the scroll range
+        no longer reaches over paper the drawing left long ago. Only then, not after each
+        edit: the view would jump under a person's pointer as the range changed."""
+        points = [(p.x, p.y) for p in self.sketch.parts] + [end for w in self.sketch.wires for end in w.ends]
+        xs, ys = [p[0] for p in points] or [0], [p[1] for p in points] or [0]
+        m = self.PAPER_MARGIN
+        paper = QRectF(QPointF(min(xs) * GRID, min(ys) * GRID),
+                       QPointF(max(xs) * GRID, max(ys) * GRID)).adjusted(-m, -m, m, m)
+        if paper != self._paper:
+            self._paper = paper
+            self.setSceneRect(paper)
+
     def _new_part_item(self, part) -> PartItem:
         item = PartItem(part, self.style, described=self.layers["descriptions"])
         if part.kind != "ground":

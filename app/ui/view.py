@@ -425,6 +425,7 @@ class CanvasView(QGraphicsView):
     def zoom_fit(self) -> None:
         if self.editor is None:
             return
+        self.sketch_scene.trim_paper()
         rect = self.sketch_scene.content_rect()
         if rect.isNull() or rect.width() < 1:
             rect = QRectF(-200, -150, 400, 300)
