@@ -173,7 +173,7 @@ def _parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_solve)
     t = sub.add_parser("shot", help="render the annotated sketch to a PNG or SVG picture")
     t.add_argument("file", help="a .lwsk sketch")
-    t.add_argument("-o", "--output", required=True, help="picture to write: .png, .svg, or .pdf (an A4 page with the cautions)")
+    t.add_argument("-o", "--output", required=True, help="picture to write: .png, .svg, or .pdf (A4 sheets with the cautions)")
     t.set_defaults(func=cmd_shot)
     e = sub.add_parser("equations", help="print KVL per loop and KCL per junction, with numbers and residuals")
     e.add_argument("file", help="a .lwsk sketch (its current tags name the currents)")

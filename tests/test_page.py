@@ -14,14 +14,17 @@ import pytest
 pytest.importorskip("pytestqt")
 pypdf = pytest.importorskip("pypdf")
 
-from PySide6.QtCore import QRectF, Qt  # noqa: E402
+from hypothesis import given, settings, strategies as st  # noqa: E402
+from PySide6.QtCore import QRectF, QSizeF, Qt  # noqa: E402
 from PySide6.QtGui import QImage, QPainter  # noqa: E402
 from PySide6.QtPrintSupport import QPrinter  # noqa: E402
 
 from app.assess import DISCLAIMER  # noqa: E402
 from app.cli import main  # noqa: E402
-from app.ui.page import paint_page, page_notes  # noqa: E402
+from app.sketch.fileio import save_sketch  # noqa: E402
+from app.ui.page import OVERLAP, SMALLEST_TEXT_MM, paint_page, page_notes, sheet_areas  # noqa: E402
 from app.ui.theme import DARK, LIGHT, current_theme, use_scheme  # noqa: E402
+from test_ui_live_solver import lattice  # noqa: E402
 from test_ui_window import one_loop  # noqa: E402  (12 V across 100 Ω and 200 Ω in series)
 from ui_support import open_window  # noqa: E402
 
@@ -126,3 +129,46 @@ def test_printing_leaves_the_selection_off_the_page_and_in_the_window(qtbot, tmp
     win.choose_printer = pdf_printer
     qtbot.keyClick(win, Qt.Key.Key_P, Qt.KeyboardModifier.ControlModifier)
     assert win.scene.selected_parts() == chosen
+
+
+@settings(max_examples=200, deadline=None)
+@given(w=st.floats(50, 20000), h=st.floats(50, 20000), rw=st.floats(500, 5000), rh=st.floats(300, 5000),
+       dpi=st.sampled_from([96, 300, 600, 1200]))
+def test_sheets_cover_the_drawing_with_readable_text(w, h, rw, rh, dpi):
+    drawing, room = QRectF(-w / 3, -h / 4, w, h), QSizeF(rw, rh)
+    areas = sheet_areas(drawing, room, dpi)
+    # the annotations' 10-unit letters on paper, in mm: 10 units × (device px per unit) / dpi × 25.4
+    least = min(min(room.width() / a.width(), room.height() / a.height()) for a in areas)
+    if len(areas) == 1:
+        assert areas[0] == drawing
+    else:
+        assert 10 * least / dpi * 25.4 == pytest.approx(SMALLEST_TEXT_MM)  # every sheet at the same scale
+        # plane geometry: tiles cover the drawing when their spans cover each axis in turn
+        xs = sorted({(a.left(), a.right()) for a in areas})
+        ys = sorted({(a.top(), a.bottom()) for a in areas})
+        assert len(areas) == len(xs) * len(ys)
+        for spans, lo, hi in ((xs, drawing.left(), drawing.right()), (ys, drawing.top(), drawing.bottom())):
+            assert spans[0][0] == pytest.approx(lo) and spans[-1][1] == pytest.approx(hi)
+            for (_, end), (start, _) in zip(spans, spans[1:]):
+                assert start < end  # neighbours overlap: a wire can be followed across
+            n, size = len(spans), spans[0][1] - spans[0][0]
+            if n > 1:  # neighbours share at least OVERLAP of a sheet, and one sheet fewer could not
+                assert all(start - prev <= size * (1 - OVERLAP) + 1e-6 for (prev, _), (start, _) in zip(spans, spans[1:]))
+                assert hi - lo > size if n == 2 else (hi - lo - size) / (n - 2) > size * (1 - OVERLAP)
+    fits = 10 * min(room.width() / w, room.height() / h) / dpi * 25.4 >= SMALLEST_TEXT_MM
+    assert (len(areas) == 1) == fits
+
+
+def test_a_large_sketch_prints_on_several_sheets_each_with_its_number_and_the_cautions(capsys, tmp_path):
+    sketch = lattice(5, 24)  # 92 grid steps across: a fitted A4 sheet would print its values about 1.9 mm tall
+    path = tmp_path / "long_bench.lwsk"
+    save_sketch(sketch, path)
+    out = tmp_path / "long_bench.pdf"
+    assert main(["shot", str(path), "-o", str(out)]) == 0
+    pages = pypdf.PdfReader(str(out)).pages
+    assert len(pages) > 1
+    for k, page in enumerate(pages):
+        text = " ".join(unicodedata.normalize("NFKC", page.extract_text()).split())
+        assert f"sheet {k + 1} of {len(pages)}" in text
+        assert " ".join(DISCLAIMER.split()) in text
+        assert float(page.mediabox.width) == pytest.approx(297 * MM, abs=1)  # A4 across (ISO 216)

@@ -25,7 +25,7 @@ from .hand_analysis import HandAnalysis
 from .heap import RestCollector
 from .help_dialog import KeysDialog, show_about
 from .icons import tool_icon
-from .page import page_notes, page_turn, paint_page
+from .page import page_notes, page_turn, paint_pages
 from .parts_bar import PartsBar
 from .properties import InlineValueEditor, PartPanel
 from .readings import ReadingsModel, ReadingsView
@@ -615,7 +615,7 @@ class MainWindow(QMainWindow):
         return latest.assessment if latest is not None and not latest.error else []
 
     def print_sketch(self) -> None:
-        """Print the drawing on one page, with its cautions under it (``page.paint_page``)."""
+        """Print the drawing, with its cautions under it, on as many sheets as it needs to stay readable (``page.paint_pages``)."""
         printer = self.choose_printer()
         if printer is None:
             return
@@ -625,8 +625,8 @@ class MainWindow(QMainWindow):
             return
         try:
             area = printer.pageLayout().paintRectPixels(printer.resolution())
-            paint_page(self.scene, painter, QRectF(0, 0, area.width(), area.height()), self._page_title(),
-                       page_notes(self._cautions()))
+            paint_pages(self.scene, painter, QRectF(0, 0, area.width(), area.height()), self._page_title(),
+                        page_notes(self._cautions()), printer.newPage)
         finally:
             painter.end()
 
