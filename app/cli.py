@@ -2,7 +2,8 @@
 
     loopwright FILE                open a sketch in the window
     loopwright solve FILE [--json] solve a sketch and print the results
-    loopwright shot FILE -o OUT    render the annotated sketch to PNG or SVG
+    loopwright shot FILE -o OUT [--paper a4|a3|letter]
+                                   render the annotated sketch to PNG, SVG or PDF
     loopwright equations FILE [--latex] [--mesh]
                                    the KVL and KCL equations, with numbers and residuals
     loopwright check FILE [--eq TEXT]...
@@ -129,7 +130,7 @@ def cmd_shot(args: argparse.Namespace) -> int:
                            ("that is a folder." if out.is_dir() else "its folder does not exist."))
     from .ui.shot import render
     try:
-        render(args.file, args.output)
+        render(args.file, args.output, paper=args.paper)
     except (OSError, ValueError) as exc:
         raise _FileProblem(str(exc)) from None
     try:
@@ -173,7 +174,9 @@ def _parser() -> argparse.ArgumentParser:
     s.set_defaults(func=cmd_solve)
     t = sub.add_parser("shot", help="render the annotated sketch to a PNG or SVG picture")
     t.add_argument("file", help="a .lwsk sketch")
-    t.add_argument("-o", "--output", required=True, help="picture to write: .png, .svg, or .pdf (A4 sheets with the cautions)")
+    t.add_argument("-o", "--output", required=True, help="picture to write: .png, .svg, or .pdf (sheets with the cautions)")
+    t.add_argument("--paper", choices=("a4", "a3", "letter"), default="a4",
+                   help="sheet size of a PDF (default a4)")
     t.set_defaults(func=cmd_shot)
     e = sub.add_parser("equations", help="print KVL per loop and KCL per junction, with numbers and residuals")
     e.add_argument("file", help="a .lwsk sketch (its current tags name the currents)")

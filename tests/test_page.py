@@ -172,3 +172,11 @@ def test_a_large_sketch_prints_on_several_sheets_each_with_its_number_and_the_ca
         assert f"sheet {k + 1} of {len(pages)}" in text
         assert " ".join(DISCLAIMER.split()) in text
         assert float(page.mediabox.width) == pytest.approx(297 * MM, abs=1)  # A4 across (ISO 216)
+
+
+def test_shot_writes_letter_sheets_when_asked(capsys, tmp_path):
+    out = tmp_path / "fixture.pdf"
+    assert main(["shot", str(DEMOS / "bench_supply_fixture.lwsk"), "-o", str(out), "--paper", "letter"]) == 0
+    box = pypdf.PdfReader(str(out)).pages[0].mediabox
+    # ANSI A (US Letter) is 8.5 in × 11 in, 72 PDF points to the inch; across for this drawing
+    assert float(box.width) == pytest.approx(11 * 72, abs=1) and float(box.height) == pytest.approx(8.5 * 72, abs=1)

@@ -28,7 +28,10 @@ from .scene import SketchScene
 from .theme import PRINT, scheme_for
 
 __all__ = ["paint_page", "paint_pages", "sheet_areas", "write_pdf", "page_notes", "page_turn", "MOST_NOTES",
-           "SMALLEST_TEXT_MM"]
+           "SMALLEST_TEXT_MM", "PAPERS"]
+
+PAPERS = {"a4": QPageSize.PageSizeId.A4, "a3": QPageSize.PageSizeId.A3,  # ISO 216
+          "letter": QPageSize.PageSizeId.Letter}  # ANSI A, 8.5 × 11 in
 
 MOST_NOTES = 12  # cautions listed on the page; the rest are counted
 # The annotations' letters are printed no smaller than this (em height, mm): ISO 3098-1 gives
@@ -162,14 +165,16 @@ def page_turn(scene: SketchScene) -> QPageLayout.Orientation:
     return QPageLayout.Orientation.Landscape if rect.width() >= rect.height() else QPageLayout.Orientation.Portrait
 
 
-def write_pdf(scene: SketchScene, path: str | os.PathLike[str], title: str, notes: list[str]) -> None:
-    """Write the sheets (``paint_pages``) as a PDF: A4, turned to suit the drawing (``page_turn``)."""
+def write_pdf(scene: SketchScene, path: str | os.PathLike[str], title: str, notes: list[str],
+              paper: str = "a4") -> None:
+    """Write the sheets (``paint_pages``) as a PDF on ``paper`` (a key of ``PAPERS``), turned
+    to suit the drawing (``page_turn``)."""
     turned = page_turn(scene)
     writer = QPdfWriter(str(path))
     writer.setResolution(300)
     writer.setTitle(title)
     writer.setCreator("Loopwright")
-    writer.setPageLayout(QPageLayout(QPageSize(QPageSize.PageSizeId.A4), turned, QMarginsF(12, 12, 12, 12),
+    writer.setPageLayout(QPageLayout(QPageSize(PAPERS[paper]), turned, QMarginsF(12, 12, 12, 12),
                                      QPageLayout.Unit.Millimeter))
     painter = QPainter()
     if not painter.begin(writer):

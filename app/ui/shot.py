@@ -34,16 +34,16 @@ def ensure_app() -> QApplication:
 
 
 def render_scene(scene: SketchScene, path_out: str | os.PathLike[str], scale: float = 2.0,
-                 title: str = "", cautions: list | None = None) -> None:
+                 title: str = "", cautions: list | None = None, paper: str = "a4") -> None:
     """Write everything drawn in ``scene`` to a PNG or SVG file, on the scheme's paper colour,
-    or to a PDF page headed ``title`` (default: the file's name) with ``cautions`` (the
-    solution's ``Caution`` list) under the drawing."""
+    or to PDF sheets of ``paper`` (``page.PAPERS``) headed ``title`` (default: the file's
+    name) with ``cautions`` (the solution's ``Caution`` list) under the drawing."""
     out = Path(path_out)
     suffix = out.suffix.lower()
     if suffix not in PICTURE_TYPES:
         raise ValueError(f"Pictures can be written as .png, .svg or .pdf, not '{out.suffix or out.name}'.")
     if suffix == ".pdf":
-        write_pdf(scene, out, title or out.stem, page_notes(cautions or []))
+        write_pdf(scene, out, title or out.stem, page_notes(cautions or []), paper)
         return
     scene.settle_marks()  # no mark left waiting for its place in a picture
     rect = scene.content_rect()
@@ -77,8 +77,9 @@ def render_scene(scene: SketchScene, path_out: str | os.PathLike[str], scale: fl
     painter.end()
 
 
-def render(path_in: str | os.PathLike[str], path_out: str | os.PathLike[str]) -> None:
-    """Render the annotated sketch in ``path_in`` to ``path_out`` (.png, .svg or .pdf), offscreen.
+def render(path_in: str | os.PathLike[str], path_out: str | os.PathLike[str], paper: str = "a4") -> None:
+    """Render the annotated sketch in ``path_in`` to ``path_out`` (.png, .svg or .pdf, on
+    ``paper``), offscreen.
 
     Raises ``SketchFileError`` for a file that cannot be read and ValueError
     for a picture type other than PNG, SVG or PDF. Always uses the light scheme
@@ -95,4 +96,4 @@ def render(path_in: str | os.PathLike[str], path_out: str | os.PathLike[str]) ->
         marks.show(result.assessment if not result.error else [])
         scene.show_result(result)  # after the badges, so loop marks are placed clear of them
         render_scene(scene, path_out, title=Path(path_in).name,
-                     cautions=result.assessment if not result.error else [])
+                     cautions=result.assessment if not result.error else [], paper=paper)
