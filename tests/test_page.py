@@ -15,9 +15,10 @@ pytest.importorskip("pytestqt")
 pypdf = pytest.importorskip("pypdf")
 
 from hypothesis import given, settings, strategies as st  # noqa: E402
-from PySide6.QtCore import QRectF, QSizeF, Qt  # noqa: E402
+from PySide6.QtCore import QLocale, QRectF, QSizeF, Qt  # noqa: E402
 from PySide6.QtGui import QImage, QPainter  # noqa: E402
 from PySide6.QtPrintSupport import QPrinter  # noqa: E402
+from PySide6.QtWidgets import QFileDialog  # noqa: E402
 
 from app.assess import DISCLAIMER  # noqa: E402
 from app.cli import main  # noqa: E402
@@ -180,3 +181,19 @@ def test_shot_writes_letter_sheets_when_asked(capsys, tmp_path):
     box = pypdf.PdfReader(str(out)).pages[0].mediabox
     # ANSI A (US Letter) is 8.5 in × 11 in, 72 PDF points to the inch; across for this drawing
     assert float(box.width) == pytest.approx(11 * 72, abs=1) and float(box.height) == pytest.approx(8.5 * 72, abs=1)
+
+
+@pytest.mark.parametrize("country, inches", [(QLocale.Country.UnitedStates, (11, 8.5)),
+                                             (QLocale.Country.Germany, (297 / 25.4, 210 / 25.4))])
+def test_export_picture_writes_the_sheet_people_print_on_there(qtbot, tmp_path, monkeypatch, country, inches):
+    out = tmp_path / "loop.pdf"
+    monkeypatch.setattr(QFileDialog, "getSaveFileName", lambda *a, **k: (str(out), ""))  # the dialog, answered
+    QLocale.setDefault(QLocale(QLocale.Language.English, country))
+    try:
+        win = open_window(qtbot, tmp_path, one_loop(), name="loop.lwsk")
+        win.export_picture()
+    finally:
+        QLocale.setDefault(QLocale.system())
+    box = pypdf.PdfReader(str(out)).pages[0].mediabox
+    # US Letter (ANSI A) is 8.5 × 11 in, A4 (ISO 216) 210 × 297 mm; 72 PDF points to the inch
+    assert (float(box.width), float(box.height)) == pytest.approx((inches[0] * 72, inches[1] * 72), abs=1)

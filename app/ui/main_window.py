@@ -25,7 +25,7 @@ from .hand_analysis import HandAnalysis
 from .heap import RestCollector
 from .help_dialog import KeysDialog, show_about
 from .icons import tool_icon
-from .page import page_notes, page_turn, paint_pages
+from .page import local_paper, page_notes, page_turn, paint_pages
 from .parts_bar import PartsBar
 from .properties import InlineValueEditor, PartPanel
 from .readings import ReadingsModel, ReadingsView
@@ -602,7 +602,8 @@ class MainWindow(QMainWindow):
                                               "PNG picture (*.png);;SVG drawing (*.svg);;PDF page with the cautions (*.pdf)")
         if path:
             try:
-                render_scene(self.scene, path, title=self._page_title(), cautions=self._cautions())
+                render_scene(self.scene, path, title=self._page_title(), cautions=self._cautions(),
+                             paper=local_paper())
             except (ValueError, OSError) as e:
                 self.tell("Cannot export the picture", str(e))
 

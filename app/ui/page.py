@@ -19,7 +19,7 @@ import os
 from collections.abc import Callable
 from pathlib import Path
 
-from PySide6.QtCore import QMarginsF, QRectF, QSizeF, Qt
+from PySide6.QtCore import QLocale, QMarginsF, QRectF, QSizeF, Qt
 from PySide6.QtGui import QFont, QFontMetricsF, QPageLayout, QPageSize, QPainter, QPdfWriter
 
 from ..assess import DISCLAIMER, Caution
@@ -28,10 +28,17 @@ from .scene import SketchScene
 from .theme import PRINT, scheme_for
 
 __all__ = ["paint_page", "paint_pages", "sheet_areas", "write_pdf", "page_notes", "page_turn", "MOST_NOTES",
-           "SMALLEST_TEXT_MM", "PAPERS"]
+           "SMALLEST_TEXT_MM", "PAPERS", "local_paper"]
 
 PAPERS = {"a4": QPageSize.PageSizeId.A4, "a3": QPageSize.PageSizeId.A3,  # ISO 216
           "letter": QPageSize.PageSizeId.Letter}  # ANSI A, 8.5 × 11 in
+
+
+def local_paper() -> str:
+    """The sheet people print on where this program runs (``QLocale``): Letter where US
+    customary units are used, A4 elsewhere."""
+    us = QLocale().measurementSystem() == QLocale.MeasurementSystem.ImperialUSSystem
+    return "letter" if us else "a4"
 
 MOST_NOTES = 12  # cautions listed on the page; the rest are counted
 # The annotations' letters are printed no smaller than this (em height, mm): ISO 3098-1 gives
