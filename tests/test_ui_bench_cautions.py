@@ -10,7 +10,7 @@ import pytest
 
 pytest.importorskip("pytestqt")
 
-from PySide6.QtCore import QPoint, QPointF, Qt  # noqa: E402
+from PySide6.QtCore import QPoint, QPointF, QRectF, Qt  # noqa: E402
 
 from app.assess import DISCLAIMER  # noqa: E402
 from app.sketch.model import PlacedPart, Sketch, Wire  # noqa: E402
@@ -225,3 +225,42 @@ def test_badges_of_parts_side_by_side_do_not_cover_each_other(qtbot, tmp_path):
     for i, a in enumerate(rects):
         for b in rects[i + 1:]:
             assert not a.intersects(b), (a, b)
+
+
+def test_badges_of_a_lamp_row_keep_off_the_rails_and_the_neighbours(qtbot, tmp_path):
+    """Four 12 V 21 W lamps six grid steps apart on a 14.4 V charging rail (10 mΩ source). By
+    hand: each lamp is 12² / 21 = 6.857 Ω, so the rail stands at 14.4 × 1.714 / (1.714 + 0.01)
+    = 14.32 V and each lamp takes 14.32² / 6.857 = 29.9 W, 142 % of its rating (P = V² / R).
+    Hung at the foot of each lamp's text, the badges would lie over the bottom rail and the
+    next lamp's terminal; each must keep clear of the wires, of every other part's symbol and
+    text, and of the other badges."""
+    s = Sketch()
+    s.add_part(PlacedPart("cell", "B1", 0, 0, 90, False, {"emf": 14.4, "internal_resistance": 0.01}))
+    xs = [0, 6, 12, 18, 24]
+    for k, x in enumerate(xs[1:]):
+        s.add_part(PlacedPart("lamp", f"H{k + 1}", x, 0, 90, False, {"rated_voltage": 12.0, "rated_power": 21.0}))
+    for y in (0, 4):
+        for a, b in zip(xs, xs[1:]):
+            s.add_wire(Wire(a, y, b, y))
+    win = open_bench_window(qtbot, tmp_path, s)
+    qtbot.waitUntil(lambda: all(win.bench.marks.badge(f"H{k}") is not None for k in range(1, 5)))
+    lamp = 12.0 ** 2 / 21.0
+    rail = 14.4 * (lamp / 4) / (lamp / 4 + 0.01)
+    assert win.readings_model.rows["H1"][2] == pytest.approx(rail ** 2 / lamp, rel=2e-3)
+    assert "142 %" in win.bench.marks.badge_text("H1")
+    items = win.scene.part_items
+    badges = {n: win.bench.marks.badge(n).mapRectToScene(win.bench.marks.badge(n).rect) for n in ("H1", "H2", "H3", "H4")}
+    grid = 20.0  # scene units per grid step (theme.GRID)
+    wires = [QRectF(QPointF(min(w.x1, w.x2) * grid, min(w.y1, w.y2) * grid),
+                    QPointF(max(w.x1, w.x2) * grid, max(w.y1, w.y2) * grid)).adjusted(-1, -1, 1, 1) for w in s.wires]
+
+    def covers(a, b) -> bool:  # more than an edge grazing it
+        common = a.intersected(b)
+        return common.width() > 2 and common.height() > 2
+
+    for name, box in badges.items():
+        assert not any(covers(box, w) for w in wires), name
+        for other, item in items.items():
+            if other != name:
+                assert not covers(box, item.body_box()) and not covers(box, item.text_block()), (name, other)
+        assert not any(box.intersects(b) for n, b in badges.items() if n != name), name

@@ -11,6 +11,7 @@ from __future__ import annotations
 
 from collections.abc import Iterable
 
+import numpy as np
 from PySide6.QtCore import QLineF, QPointF, QRectF, Qt
 from PySide6.QtGui import QColor, QFont, QFontMetricsF, QPainter, QPainterPath, QPen, QPolygonF
 from PySide6.QtWidgets import QGraphicsItem, QGraphicsScene, QStyleOptionGraphicsItem, QWidget
@@ -18,7 +19,7 @@ from PySide6.QtWidgets import QGraphicsItem, QGraphicsScene, QStyleOptionGraphic
 from ..assess import Caution, display_reading
 from ..units import format_value
 from .items import CACHE, COVER_TEXT, Z_MARK, Box, PartItem, box_of, to_scene, too_small
-from .theme import current_theme, label_font, small_font
+from .theme import GRID, current_theme, label_font, small_font
 
 __all__ = ["Badge", "MeterFace", "PointBadge", "BenchMarks", "badge_for"]
 
@@ -350,40 +351,71 @@ class BenchMarks:
         self._spread(bases)
         self._show_points(hazards)
 
-    STEPS_OUT = 3  # how many badge heights a badge may move out to clear another badge
+    STEPS_OUT = 3  # how many badge heights a badge may move out to clear what is in its way
     SPREAD_UP_TO = 40  # more badges keep their own places (the Cautions list has them all): 1 ms at most
 
     def _spread(self, bases: dict["Badge", float]) -> None:
         """Hang each badge where, from its own place (``bases``) out to ``STEPS_OUT`` badge
-        heights further from its part, it covers least of the badges hung before it (the
-        nearest of equal places): parts side by side in trouble otherwise hang their badges
-        over each other's. The places are worked out as boxes; a badge is laid out again only
-        when it moves."""
+        heights further from its part, it covers least of what is drawn there: the badges
+        hung before it, the other parts' symbols, texts and meter displays, and the wires
+        (the nearest of equal places). Parts side by side in trouble otherwise hang their
+        badges over each other's, and over a neighbour's terminal or the rail they share.
+        The places are worked out as boxes; a badge is laid out again only when it moves."""
         if len(bases) > self.SPREAD_UP_TO:
             for badge, base in bases.items():
                 self._hang(badge, base)
             return
+        drawn, owners = self._drawn_boxes()
         hung: list[tuple[float, float, float, float]] = []
 
         def at(badge: Badge, offset: float) -> tuple[float, float, float, float]:
             return badge.rect_for(offset).translated(badge.owner.pos()).getCoords()
 
-        def covered(box: tuple[float, float, float, float]) -> float:
+        def covered(box: tuple[float, float, float, float], owner: PartItem) -> float:
             left, top, right, bottom = box
-            return sum(max(0.0, min(right, o[2]) - max(left, o[0])) * max(0.0, min(bottom, o[3]) - max(top, o[1]))
+            area = sum(max(0.0, min(right, o[2]) - max(left, o[0])) * max(0.0, min(bottom, o[3]) - max(top, o[1]))
                        for o in hung)
+            if len(drawn):
+                g = self.GRAZE  # an edge grazing a box covers nothing of what is drawn in it
+                w = np.clip(np.minimum(right, drawn[:, 2]) - np.maximum(left, drawn[:, 0]) - g, 0, None)
+                h = np.clip(np.minimum(bottom, drawn[:, 3]) - np.maximum(top, drawn[:, 1]) - g, 0, None)
+                area += float((w * h)[owners != id(owner)].sum())
+            return area
 
         for badge in sorted(bases, key=lambda b: at(b, bases[b])[1::-1]):
             base, step = bases[badge], badge.size()[1] + 2
             places = []
             for k in range(self.STEPS_OUT + 1):
                 box = at(badge, base + k * step)
-                places.append((covered(box), k, box))
+                places.append((covered(box, badge.owner), k, box))
                 if places[-1][0] == 0:
                     break
             _, k, box = min(places)
             self._hang(badge, base + k * step)
             hung.append(box)
+
+    WIRE_REACH = 3.0  # scene units either side of a wire's line that a badge should keep off
+    GRAZE = 2.0  # scene units of overlap with a symbol, a text or a wire's reach that count for nothing
+
+    def _drawn_boxes(self) -> tuple[np.ndarray, np.ndarray]:
+        """(rows of left, top, right, bottom; the id of the part each belongs to, 0 for a
+        wire) of what a badge should not cover: every part's symbol and text block, the meter
+        displays, and the wires."""
+        rows, owners = [], []
+        for item in self.part_items.values():
+            for box in (item.body_box(), item.text_block()):
+                if not box.isEmpty():
+                    rows.append(box.getCoords())
+                    owners.append(id(item))
+        for face in self._faces.values():
+            if face.isVisible():
+                rows.append(face.sceneBoundingRect().getCoords())
+                owners.append(id(face.owner))
+        r, g = self.WIRE_REACH, GRID
+        for w in getattr(getattr(self.scene, "sketch", None), "wires", ()):
+            rows.append((min(w.x1, w.x2) * g - r, min(w.y1, w.y2) * g - r, max(w.x1, w.x2) * g + r, max(w.y1, w.y2) * g + r))
+            owners.append(0)
+        return np.array(rows, dtype=float).reshape(-1, 4), np.array(owners, dtype=np.int64)
 
     @staticmethod
     def _hang(badge: "Badge", offset: float) -> None:
