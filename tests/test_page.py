@@ -24,7 +24,7 @@ from app.assess import DISCLAIMER  # noqa: E402
 from app.cli import main  # noqa: E402
 from app.sketch.fileio import save_sketch  # noqa: E402
 from app.ui.page import OVERLAP, SMALLEST_TEXT_MM, paint_page, page_notes, sheet_areas  # noqa: E402
-from app.ui.theme import DARK, LIGHT, current_theme, use_scheme  # noqa: E402
+from app.ui.theme import DARK, LIGHT, SMALL_PX, current_theme, use_scheme  # noqa: E402
 from test_ui_live_solver import lattice  # noqa: E402
 from test_ui_window import one_loop  # noqa: E402  (12 V across 100 Ω and 200 Ω in series)
 from ui_support import open_window  # noqa: E402
@@ -138,12 +138,12 @@ def test_printing_leaves_the_selection_off_the_page_and_in_the_window(qtbot, tmp
 def test_sheets_cover_the_drawing_with_readable_text(w, h, rw, rh, dpi):
     drawing, room = QRectF(-w / 3, -h / 4, w, h), QSizeF(rw, rh)
     areas = sheet_areas(drawing, room, dpi)
-    # the annotations' 10-unit letters on paper, in mm: 10 units × (device px per unit) / dpi × 25.4
+    # the annotations' letters on paper, in mm: SMALL_PX units × (device px per unit) / dpi × 25.4
     least = min(min(room.width() / a.width(), room.height() / a.height()) for a in areas)
     if len(areas) == 1:
         assert areas[0] == drawing
     else:
-        assert 10 * least / dpi * 25.4 == pytest.approx(SMALLEST_TEXT_MM)  # every sheet at the same scale
+        assert SMALL_PX * least / dpi * 25.4 == pytest.approx(SMALLEST_TEXT_MM)  # every sheet at the same scale
         # plane geometry: tiles cover the drawing when their spans cover each axis in turn
         xs = sorted({(a.left(), a.right()) for a in areas})
         ys = sorted({(a.top(), a.bottom()) for a in areas})
@@ -156,7 +156,7 @@ def test_sheets_cover_the_drawing_with_readable_text(w, h, rw, rh, dpi):
             if n > 1:  # neighbours share at least OVERLAP of a sheet, and one sheet fewer could not
                 assert all(start - prev <= size * (1 - OVERLAP) + 1e-6 for (prev, _), (start, _) in zip(spans, spans[1:]))
                 assert hi - lo > size if n == 2 else (hi - lo - size) / (n - 2) > size * (1 - OVERLAP)
-    fits = 10 * min(room.width() / w, room.height() / h) / dpi * 25.4 >= SMALLEST_TEXT_MM
+    fits = SMALL_PX * min(room.width() / w, room.height() / h) / dpi * 25.4 >= SMALLEST_TEXT_MM
     assert (len(areas) == 1) == fits
 
 

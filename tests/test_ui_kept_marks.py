@@ -51,6 +51,8 @@ def _in_one_pass(win, monkeypatch) -> np.ndarray:
         m.setattr(ReadingLayer, "KEEP", False)
         m.setattr(layer, "_hot", {})
         m.setattr(layer, "_hot_in", tuple({} for _ in ReadingLayer.GROUPS))
+        for table in layer.tables:  # none drawn over the rest
+            m.setattr(table, "_over", np.zeros_like(table._over))
         return _from_nothing(win)
 
 

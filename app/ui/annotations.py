@@ -537,10 +537,15 @@ def marks_meeting(marks: list, areas: np.ndarray) -> list:
     top, right, bottom), tested against every area at once."""
     if not marks:
         return marks
-    b = np.array([m._scene_box for m in marks])[:, :, None]
-    a = areas.T[None]
-    hit = ((b[:, 2] >= a[:, 0]) & (b[:, 0] <= a[:, 2]) & (b[:, 3] >= a[:, 1]) & (b[:, 1] <= a[:, 3])).any(axis=1)
+    hit = _meets(np.array([m._scene_box for m in marks]), areas)
     return [m for m, h in zip(marks, hit.tolist()) if h]
+
+
+def _meets(boxes: np.ndarray, areas: np.ndarray) -> np.ndarray:
+    """Per row of ``boxes``, whether it meets any of ``areas`` (both rows of left, top, right,
+    bottom; edges touching count), every pair tested at once."""
+    b, a = boxes[:, :, None], areas.T[None]
+    return ((b[:, 2] >= a[:, 0]) & (b[:, 0] <= a[:, 2]) & (b[:, 3] >= a[:, 1]) & (b[:, 1] <= a[:, 3])).any(axis=1)
 
 
 class MarkTable:
@@ -616,9 +621,7 @@ class MarkTable:
         rows = np.flatnonzero(shown & (b[:, 2] >= left) & (b[:, 0] <= right)
                               & (b[:, 3] >= top) & (b[:, 1] <= bottom))
         if len(areas) > 1 and len(rows):
-            c, a = b[rows][:, :, None], areas.T[None]
-            rows = rows[((c[:, 2] >= a[:, 0]) & (c[:, 0] <= a[:, 2]) & (c[:, 3] >= a[:, 1])
-                         & (c[:, 1] <= a[:, 3])).any(axis=1)]
+            rows = rows[_meets(b[rows], areas)]
         marks = self.marks
         return [marks[k] for k in rows.tolist()]
 
@@ -927,7 +930,7 @@ class ReadingLayer(QGraphicsItem):
         if which == self._HOT and len(hot) * 2 < len(self.tables[group]):
             marks = marks_meeting([m for m in hot.values() if m._visible], areas)  # fewer to look at
         else:
-            marks = self.tables[group].meeting(areas, None if which == self._ALL or not hot else which == self._HOT)
+            marks = self.tables[group].meeting(areas, None if which == self._ALL else which == self._HOT)
         return marks
 
     def _paint_marks(self, painter: QPainter, group: int, marks: list, looks: tuple, exact: bool) -> None:

@@ -18,7 +18,7 @@ from PySide6.QtWidgets import QGraphicsItem, QGraphicsScene, QStyleOptionGraphic
 
 from ..assess import Caution, display_reading
 from ..units import format_value
-from .items import CACHE, COVER_TEXT, Z_MARK, Box, PartItem, box_of, to_scene, too_small
+from .items import CACHE, COVER_TEXT, Z_MARK, Box, PartItem, WireItem, box_of, to_scene, too_small
 from .theme import GRID, current_theme, label_font, small_font
 
 __all__ = ["Badge", "MeterFace", "PointBadge", "BenchMarks", "badge_for"]
@@ -357,65 +357,62 @@ class BenchMarks:
     def _spread(self, bases: dict["Badge", float]) -> None:
         """Hang each badge where, from its own place (``bases``) out to ``STEPS_OUT`` badge
         heights further from its part, it covers least of what is drawn there: the badges
-        hung before it, the other parts' symbols, texts and meter displays, and the wires
-        (the nearest of equal places). Parts side by side in trouble otherwise hang their
-        badges over each other's, and over a neighbour's terminal or the rail they share.
-        The places are worked out as boxes; a badge is laid out again only when it moves."""
+        hung before it, and what ``_in_the_way`` finds (the nearest of equal places). Parts
+        side by side in trouble otherwise hang their badges over each other's, and over a
+        neighbour's terminal or the rail they share. The places are worked out as boxes; a
+        badge is laid out again only when it moves."""
         if len(bases) > self.SPREAD_UP_TO:
             for badge, base in bases.items():
                 self._hang(badge, base)
             return
-        drawn, owners = self._drawn_boxes()
         hung: list[tuple[float, float, float, float]] = []
 
-        def at(badge: Badge, offset: float) -> tuple[float, float, float, float]:
-            return badge.rect_for(offset).translated(badge.owner.pos()).getCoords()
+        def at(badge: Badge, offset: float) -> QRectF:
+            return badge.rect_for(offset).translated(badge.owner.pos())
 
-        def covered(box: tuple[float, float, float, float], owner: PartItem) -> float:
-            left, top, right, bottom = box
-            area = sum(max(0.0, min(right, o[2]) - max(left, o[0])) * max(0.0, min(bottom, o[3]) - max(top, o[1]))
-                       for o in hung)
-            if len(drawn):
-                g = self.GRAZE  # an edge grazing a box covers nothing of what is drawn in it
-                w = np.clip(np.minimum(right, drawn[:, 2]) - np.maximum(left, drawn[:, 0]) - g, 0, None)
-                h = np.clip(np.minimum(bottom, drawn[:, 3]) - np.maximum(top, drawn[:, 1]) - g, 0, None)
-                area += float((w * h)[owners != id(owner)].sum())
-            return area
-
-        for badge in sorted(bases, key=lambda b: at(b, bases[b])[1::-1]):
+        for badge in sorted(bases, key=lambda b: at(b, bases[b]).getCoords()[1::-1]):
             base, step = bases[badge], badge.size()[1] + 2
+            boxes = [at(badge, base + k * step) for k in range(self.STEPS_OUT + 1)]
+            drawn = np.array(hung + self._in_the_way(boxes[0].united(boxes[-1]), badge.owner)).reshape(-1, 4)
+            graze = np.array([0.0] * len(hung) + [self.GRAZE] * (len(drawn) - len(hung)))
             places = []
-            for k in range(self.STEPS_OUT + 1):
-                box = at(badge, base + k * step)
-                places.append((covered(box, badge.owner), k, box))
+            for k, box in enumerate(boxes):
+                left, top, right, bottom = box.getCoords()
+                w = np.clip(np.minimum(right, drawn[:, 2]) - np.maximum(left, drawn[:, 0]) - graze, 0, None)
+                h = np.clip(np.minimum(bottom, drawn[:, 3]) - np.maximum(top, drawn[:, 1]) - graze, 0, None)
+                places.append((float((w * h).sum()), k))
                 if places[-1][0] == 0:
                     break
-            _, k, box = min(places)
+            _, k = min(places)
             self._hang(badge, base + k * step)
-            hung.append(box)
+            hung.append(boxes[k].getCoords())
 
     WIRE_REACH = 3.0  # scene units either side of a wire's line that a badge should keep off
     GRAZE = 2.0  # scene units of overlap with a symbol, a text or a wire's reach that count for nothing
 
-    def _drawn_boxes(self) -> tuple[np.ndarray, np.ndarray]:
-        """(rows of left, top, right, bottom; the id of the part each belongs to, 0 for a
-        wire) of what a badge should not cover: every part's symbol and text block, the meter
-        displays, and the wires."""
-        rows, owners = [], []
-        for item in self.part_items.values():
-            for box in (item.body_box(), item.text_block()):
-                if not box.isEmpty():
-                    rows.append(box.getCoords())
-                    owners.append(id(item))
-        for face in self._faces.values():
-            if face.isVisible():
-                rows.append(face.sceneBoundingRect().getCoords())
-                owners.append(id(face.owner))
-        r, g = self.WIRE_REACH, GRID
-        for w in getattr(getattr(self.scene, "sketch", None), "wires", ()):
-            rows.append((min(w.x1, w.x2) * g - r, min(w.y1, w.y2) * g - r, max(w.x1, w.x2) * g + r, max(w.y1, w.y2) * g + r))
-            owners.append(0)
-        return np.array(rows, dtype=float).reshape(-1, 4), np.array(owners, dtype=np.int64)
+    def _in_the_way(self, area: QRectF, owner: PartItem) -> list[tuple[float, float, float, float]]:
+        """The boxes (left, top, right, bottom) in ``area`` that a badge of ``owner`` should not
+        cover: the other parts' symbols, text blocks and meter displays, and the wires (with
+        ``WIRE_REACH`` either side). Asked of the scene's index: a few badges, each in a
+        corner of a drawing of any size."""
+        out, seen = [], {id(owner)}
+        r = self.WIRE_REACH
+        for item in self.scene.items(area):
+            if isinstance(item, WireItem):
+                w = item.wire
+                out.append((min(w.x1, w.x2) * GRID - r, min(w.y1, w.y2) * GRID - r,
+                            max(w.x1, w.x2) * GRID + r, max(w.y1, w.y2) * GRID + r))
+                continue
+            # a part is met by its symbol and text, or by one of its marks alone (a mark is its child)
+            part = item if isinstance(item, PartItem) else item.parentItem()
+            if not isinstance(part, PartItem) or part is owner or part.ghost:
+                continue
+            if isinstance(item, MeterFace) and item.isVisible():
+                out.append(item.sceneBoundingRect().getCoords())
+            if id(part) not in seen:
+                seen.add(id(part))
+                out += [b.getCoords() for b in (part.body_box(), part.text_block()) if not b.isEmpty()]
+        return out
 
     @staticmethod
     def _hang(badge: "Badge", offset: float) -> None:

@@ -599,7 +599,7 @@ class MainWindow(QMainWindow):
     def export_picture(self) -> None:
         start = str(self.path.with_suffix(".png")) if self.path else str(Path.home() / "sketch.png")
         path, _ = QFileDialog.getSaveFileName(self, "Export picture", start,
-                                              "PNG picture (*.png);;SVG drawing (*.svg);;PDF page with the cautions (*.pdf)")
+                                              "PNG picture (*.png);;SVG drawing (*.svg);;PDF sheets with the cautions (*.pdf)")
         if path:
             try:
                 render_scene(self.scene, path, title=self._page_title(), cautions=self._cautions(),

@@ -25,7 +25,7 @@ from PySide6.QtGui import QFont, QFontMetricsF, QPageLayout, QPageSize, QPainter
 from ..assess import DISCLAIMER, Caution
 from .cautions_panel import caution_line, most_severe_first
 from .scene import SketchScene
-from .theme import PRINT, scheme_for
+from .theme import PRINT, SMALL_PX, scheme_for
 
 __all__ = ["paint_page", "paint_pages", "sheet_areas", "write_pdf", "page_notes", "page_turn", "MOST_NOTES",
            "SMALLEST_TEXT_MM", "PAPERS", "local_paper"]
@@ -33,19 +33,18 @@ __all__ = ["paint_page", "paint_pages", "sheet_areas", "write_pdf", "page_notes"
 PAPERS = {"a4": QPageSize.PageSizeId.A4, "a3": QPageSize.PageSizeId.A3,  # ISO 216
           "letter": QPageSize.PageSizeId.Letter}  # ANSI A, 8.5 × 11 in
 
+MOST_NOTES = 12  # cautions listed on the page; the rest are counted
+# The annotations' letters are printed no smaller than this (em height, mm): ISO 3098-1 gives
+# 2.5 mm as the smallest lettering height on technical drawings (from memory).
+SMALLEST_TEXT_MM = 2.5
+OVERLAP = 0.06  # the share of a sheet's drawing repeated on the next sheet
+
 
 def local_paper() -> str:
     """The sheet people print on where this program runs (``QLocale``): Letter where US
     customary units are used, A4 elsewhere."""
     us = QLocale().measurementSystem() == QLocale.MeasurementSystem.ImperialUSSystem
     return "letter" if us else "a4"
-
-MOST_NOTES = 12  # cautions listed on the page; the rest are counted
-# The annotations' letters are printed no smaller than this (em height, mm): ISO 3098-1 gives
-# 2.5 mm as the smallest lettering height on technical drawings (from memory).
-SMALLEST_TEXT_MM = 2.5
-ANNOTATION_PX = 10  # the annotations' font size in scene units (``theme.small_font``)
-OVERLAP = 0.06  # the share of a sheet's drawing repeated on the next sheet
 
 
 def page_notes(cautions: list[Caution]) -> list[str]:
@@ -88,7 +87,7 @@ def sheet_areas(drawing: QRectF, room: QSizeF, dpi: float) -> list[QRectF]:
     >>> len(sheet_areas(QRectF(0, 0, 400, 300), QSizeF(3200, 2200), 300))
     1
     """
-    least = SMALLEST_TEXT_MM / 25.4 * dpi / ANNOTATION_PX  # device pixels per scene unit
+    least = SMALLEST_TEXT_MM / 25.4 * dpi / SMALL_PX  # device pixels per scene unit
     if min(room.width() / drawing.width(), room.height() / drawing.height()) >= least:
         return [drawing]
 
@@ -126,7 +125,6 @@ def paint_page(scene: SketchScene, painter: QPainter, page: QRectF, title: str, 
     painter.restore()
     if drawing.height() <= 0:
         return
-    scene.settle_marks()  # no mark left waiting for its place on paper
     source = area if area is not None else _drawing(scene)
     if source is None:
         return
@@ -142,7 +140,8 @@ def paint_page(scene: SketchScene, painter: QPainter, page: QRectF, title: str, 
 
 
 def _drawing(scene: SketchScene) -> QRectF | None:
-    """The scene area of the drawing and its annotations with a little paper round it (None: empty)."""
+    """The scene area of the drawing and its annotations with a little paper round it (None: empty),
+    every mark placed first (none left waiting for its place on paper)."""
     scene.settle_marks()
     source = scene.content_rect()
     if source.isNull() or source.width() < 1:

@@ -65,7 +65,7 @@ class SketchScene(QGraphicsScene):
         self._place_timer.setInterval(self.PLACE_AFTER_MS)
         self._place_timer.timeout.connect(self.settle_marks)
         self.setItemIndexMethod(QGraphicsScene.ItemIndexMethod.BspTreeIndex)
-        self._paper = QRectF(-self.PAPER_MARGIN, -self.PAPER_MARGIN, 2 * self.PAPER_MARGIN, 2 * self.PAPER_MARGIN)
+        self._paper = self._paper_around([(0, 0)])
         self.setSceneRect(self._paper)
         sketch.subscribe(self._on_model_changed)
         self.sync()
@@ -112,13 +112,11 @@ class SketchScene(QGraphicsScene):
         """
         if not points:
             return
-        xs, ys = [p[0] for p in points], [p[1] for p in points]
-        box = QRectF(QPointF(min(xs) * GRID, min(ys) * GRID), QPointF(max(xs) * GRID, max(ys) * GRID))
+        around = self._paper_around(points)
         half = self.PAPER_MARGIN / 2
-        if self._paper.adjusted(half, half, -half, -half).contains(box):
+        if self._paper.contains(around.adjusted(half, half, -half, -half)):  # nothing within half a margin of the edge
             return
-        m = self.PAPER_MARGIN
-        self._paper = self._paper.united(box.adjusted(-m, -m, m, m))
+        self._paper = self._paper.united(around)
         self.setSceneRect(self._paper)
 
     def trim_paper(self) -> None:
@@ -128,13 +126,17 @@ class SketchScene(QGraphicsScene):
         no longer reaches over paper the drawing left long ago. Only then, not after each
         edit: the view would jump under a person's pointer as the range changed."""
         points = [(p.x, p.y) for p in self.sketch.parts] + [end for w in self.sketch.wires for end in w.ends]
-        xs, ys = [p[0] for p in points] or [0], [p[1] for p in points] or [0]
-        m = self.PAPER_MARGIN
-        paper = QRectF(QPointF(min(xs) * GRID, min(ys) * GRID),
-                       QPointF(max(xs) * GRID, max(ys) * GRID)).adjusted(-m, -m, m, m)
+        paper = self._paper_around(points or [(0, 0)])
         if paper != self._paper:
             self._paper = paper
             self.setSceneRect(paper)
+
+    def _paper_around(self, points: list[tuple[int, int]]) -> QRectF:
+        """The box around grid ``points`` with ``PAPER_MARGIN`` of paper on every side."""
+        xs, ys = [p[0] for p in points], [p[1] for p in points]
+        m = self.PAPER_MARGIN
+        return QRectF(QPointF(min(xs) * GRID, min(ys) * GRID),
+                      QPointF(max(xs) * GRID, max(ys) * GRID)).adjusted(-m, -m, m, m)
 
     def _new_part_item(self, part) -> PartItem:
         item = PartItem(part, self.style, described=self.layers["descriptions"])
@@ -294,7 +296,7 @@ class SketchScene(QGraphicsScene):
         for i in items:
             i.setCacheMode(QGraphicsItem.CacheMode.NoCache)
         chosen = self.selectedItems()
-        self.blockSignals(True)
+        blocked = self.blockSignals(True)
         self.clearSelection()
         self.drawn_exactly = True
         try:
@@ -305,7 +307,7 @@ class SketchScene(QGraphicsScene):
                 i.setCacheMode(mode)
             for i in chosen:
                 i.setSelected(True)
-            self.blockSignals(False)
+            self.blockSignals(blocked)
 
     def drawBackground(self, painter: QPainter, rect: QRectF) -> None:  # noqa: N802 (Qt's name)
         """The drawing's wires and parts, which lie on the paper (``items.OnPaper``)."""

@@ -13,7 +13,7 @@ from dataclasses import dataclass, replace
 from PySide6.QtGui import QColor, QFont, QGuiApplication, QPalette
 
 __all__ = ["Theme", "LIGHT", "DARK", "PRINT", "current_theme", "set_theme", "scheme_for", "use_scheme", "window_palette", "GRID",
-           "label_font", "small_font", "description_font", "REFUSAL", "style_refusal"]
+           "label_font", "small_font", "SMALL_PX", "description_font", "REFUSAL", "style_refusal"]
 
 GRID = 20.0  # scene units per grid step
 
@@ -176,9 +176,12 @@ def label_font(pixels: int = 11) -> QFont:
     return f
 
 
+SMALL_PX = 10  # the annotations' font size, in scene units
+
+
 def small_font() -> QFont:
     """The font of annotations (currents, drops, potentials)."""
-    return label_font(10)
+    return label_font(SMALL_PX)
 
 
 _DESCRIPTION: QFont | None = None
