@@ -112,5 +112,28 @@ def test_a_crowded_grid_has_less_text_over_text_than_with_every_text_away(qtbot,
     assert settled < 0.85 * _overlap(SketchScene(sketch))
 
 
-def test_parts_are_settled_in_the_order_of_their_designators():
-    assert sorted(["R10", "R2", "B1", "R1", "PV1"], key=order_key) == ["B1", "PV1", "R1", "R2", "R10"]
+def huddle(renamed: str = "R2") -> Sketch:
+    """Six resistors huddled within nine grid steps, lying across and upright, so that their
+    texts contend for the same room; a cell far off holds the middle of the drawing away."""
+    s = Sketch()
+    for name, x, y, turn in (("R1", 3, 4, 0), ("R2", 6, 7, 0), ("R3", 1, 1, 0), ("R4", 6, 8, 90),
+                             ("R5", 0, 3, 90), ("R6", 4, 2, 0)):
+        s.add_part(PlacedPart("resistor", renamed if name == "R2" else name, x, y, turn, False,
+                              {"resistance": 100.0}))
+    s.add_part(PlacedPart("cell", "B1", 20, 20, 90, False, {"emf": 9.0}))
+    return s
+
+
+def test_renaming_a_part_turns_no_neighbours_text(qtbot):
+    # the settling order follows where parts stand, not their names: with the designators'
+    # order, R2 renamed R12 settled after R4 instead of before it, and R4's text turned over
+    before = SketchScene(huddle()).part_items
+    after = SketchScene(huddle("R12")).part_items
+    assert {n: before[n].side for n in before if n != "R2"} == {n: after[n].side for n in after if n != "R12"}
+    assert before["R2"].side == after["R12"].side
+
+
+def test_parts_are_settled_column_by_column_from_the_left_then_from_the_top():
+    parts = [PlacedPart("resistor", n, x, y) for n, x, y in
+             (("R10", 0, 0), ("R2", 0, 0), ("B1", 5, 0), ("R1", 0, 4), ("PV1", -3, 4))]
+    assert [p.name for p in sorted(parts, key=order_key)] == ["PV1", "R2", "R10", "R1", "B1"]

@@ -3,8 +3,9 @@
 A part's text (designator, value, description, then its current and drop marks) goes on
 the side facing away from the middle of the drawing, as a person writes it, unless that
 side is crowded more than the other by the neighbours' symbols and texts. The parts are
-settled one by one in the order of their designators (``order_key``: R2 before R10), each
-against the neighbours settled before it as they now stand and the others on their sides
+settled one by one in the order of where they stand (``order_key``: column by column from
+the left, each from the top; the designator only between parts on one grid point), so
+renaming a part turns no neighbour's text, each against the neighbours settled before it as they now stand and the others on their sides
 away from the middle: a greedy pass, in the manner of the sequential placement heuristics
 of map labelling (Christensen, Marks and Shieber, "An empirical study of algorithms for
 point-feature label placement", ACM Trans. Graphics 14(3), 1995).
@@ -31,9 +32,15 @@ __all__ = ["LabelSides", "order_key"]
 _NUMBER = re.compile(r"(\d+)")
 
 
-def order_key(name: str) -> tuple:
-    """The order parts are settled in: by designator, numbers by value (R2 before R10)."""
-    return tuple(int(t) if t.isdigit() else t for t in _NUMBER.split(name))
+def order_key(part) -> tuple:
+    """The order ``part`` (a ``PlacedPart``) is settled in: by grid column, then row, then
+    designator with numbers by value (R2 before R10).
+
+    Column by column, not row by row: in a lattice (rows of parts lying across, joined by
+    upright ones) row order settles each upright part among the unsettled ones below it,
+    and leaves more text over text; column order does as well as the designators did.
+    """
+    return (part.x, part.y) + tuple(int(t) if t.isdigit() else t for t in _NUMBER.split(part.name))
 
 
 def _overlap(a: QRectF, b: QRectF) -> float:
@@ -120,7 +127,7 @@ class LabelSides:
             item = items[name]
             shapes = (item.body_box(), item.text_block(-1), item.text_block(1))
             if self._shapes.get(name) != shapes:
-                self._key.setdefault(name, order_key(name))
+                self._key[name] = order_key(item.part)
                 was = self._file(name, item.reach_box())
                 if was is not None:
                     touched.append(was)
