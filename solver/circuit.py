@@ -96,6 +96,10 @@ def _check_value(name: str, what: str, value: float, *, zero_ok: bool, turn_hint
 _new_part = object.__new__
 
 
+def _twice(name: str) -> DuplicateNameError:
+    return DuplicateNameError(f"Two parts are named {name}; each part needs its own name.", [name])
+
+
 def _make_part(name: str, kind: str, a: str, b: str, resistance: float = 0.0, emf: float = 0.0,
                current: float = 0.0, closed: bool = True) -> Part:
     """``Part(...)`` without the frozen dataclass's per-field ``object.__setattr__`` calls (a quarter of the cost)."""
@@ -129,12 +133,24 @@ class Circuit:
             raise InvalidValueError("Every part needs a name.", [])
         if not (isinstance(a, str) and a and isinstance(b, str) and b):
             raise InvalidValueError(f"{name}: terminal names must be non-empty text.", [name])
-        parts = self._parts
-        if name in parts:
-            raise DuplicateNameError(f"Two parts are named {name}; each part needs its own name.", [name])
+        if name in self._parts:
+            raise _twice(name)
         if a == b:
             raise SelfConnectedError(f"{name} has both terminals on the same point {a}.", [name])
-        parts[name] = _make_part(name, kind, a, b, resistance, emf, current, closed)
+        self._parts[name] = _make_part(name, kind, a, b, resistance, emf, current, closed)
+
+    def _adopt(self, part: Part) -> None:
+        """Add ``part`` as another circuit made and checked it: parts are immutable values, so
+        a netlist built again after an edit takes those of the parts the edit left alone
+        from the netlist before (``app.sketch.netlist``)."""
+        if part.name in self._parts:
+            raise _twice(part.name)
+        self._parts[part.name] = part
+
+    def _place_checked(self, positions: dict[str, tuple[float, float]]) -> None:
+        """Place every point of ``positions`` (name: (x, y) floats, finite, with no -0.0), as
+        ``place`` does once checked: the netlist keeps the positions of its last drawings."""
+        self._positions.update(positions)
 
     def resistor(self, name: str, a: str, b: str, resistance: float) -> None:
         """Add a resistor of ``resistance`` ohms between ``a`` and ``b``."""

@@ -31,8 +31,9 @@ def bench() -> Sketch:
 
 
 def fresh(sketch: Sketch):
-    """``to_circuit`` with no layout kept."""
+    """``to_circuit`` with no layout and no circuit part kept."""
     netlist_module._LAYOUTS = ()
+    netlist_module._MADE = {}
     return to_circuit(sketch)
 
 
@@ -92,6 +93,18 @@ def test_a_changed_drawing_gets_its_own_layout(change):
     after = to_circuit(s)
     same(after, fresh(s))
     assert (after.point_at, after.junctions, after.open_ends) != (before.point_at, before.junctions, before.open_ends)
+
+
+def test_parts_an_edit_left_alone_keep_their_circuit_parts_and_the_edited_one_is_made_again():
+    s = bench()
+    before = {p.name: p for p in to_circuit(s).circuit.parts}
+    apply(s, "R1", "resistance", 4.7)
+    s.replace_part("PV1", replace(s.part("PV1"), x=20))  # moved: its terminals lie elsewhere
+    after = {p.name: p for p in to_circuit(s).circuit.parts}
+    assert after["B1"] is before["B1"] and after["F1"] is before["F1"]
+    assert after["R1"].resistance == 4.7 and before["R1"].resistance == 100.0
+    assert after["PV1"].a != before["PV1"].a
+    assert after == {p.name: p for p in fresh(s).circuit.parts}
 
 
 def test_a_thrown_switch_on_a_kept_layout_is_solved_as_thrown():

@@ -16,6 +16,7 @@ from dataclasses import dataclass, field
 from itertools import chain
 
 from solver import Circuit, CircuitError
+from solver.circuit import Part
 
 from .bench_parts import cable_resistance, lamp_hot_resistance
 from .kinds import KINDS
@@ -77,11 +78,6 @@ def _check_name(part: PlacedPart) -> None:
             f"The name {part.name} starts with '~', which is kept for wires; rename the part.",
             [part.name],
         )
-
-
-def _check_names(parts: list[PlacedPart]) -> None:
-    for part in parts:
-        _check_name(part)
 
 
 def _runs(wires: list[Wire]):
@@ -225,12 +221,14 @@ class _Layout:
     """What a netlist takes from the drawing alone, kept for the next sketch drawn the same way.
 
     ``ends`` are the circuit point names of each non-ground part's terminals in sketch order,
-    ``conductors`` the wire pieces and then the ground ties as ``(name, a, b)``. Never
-    handed out: every netlist gets copies of the containers.
+    ``conductors`` the wire pieces and then the ground ties as ``(name, a, b)``, ``positions``
+    each point's place as ``Circuit.place`` keeps it. Never handed out: every netlist gets
+    copies of the containers.
     """
 
     key: tuple | None
     point_at: dict[GridPoint, str]
+    positions: dict[str, tuple[float, float]]
     ends: list[tuple[str, str]]
     conductors: list[tuple[str, str, str]]
     ground: str | None
@@ -283,17 +281,14 @@ def to_circuit(sketch: Sketch) -> Netlist:
         layout = _new_layout(key, parts, wires)
         if key is not None:
             _LAYOUTS = (layout, *layouts[:_LAYOUTS_KEPT - 1])
-    else:
-        _check_names(parts)   # the kinds and wires were checked when the layout was made
     c = Circuit()
     point_at = layout.point_at
-    for p, name in point_at.items():
-        c.place(name, p[0], p[1])
-    ends = iter(layout.ends)
-    for part in parts:
-        if part.kind != "ground":
-            a, b = next(ends)
-            _add_part(c, part, a, b)
+    if key is None:
+        for p, name in point_at.items():
+            c.place(name, p[0], p[1])
+    else:  # whole grid coordinates: finite, no -0.0
+        c._place_checked(layout.positions)
+    _add_parts(c, parts, layout.ends)
     for name, a, b in layout.conductors:
         c.wire(name, a, b)
     return Netlist(
@@ -306,6 +301,37 @@ def to_circuit(sketch: Sketch) -> Netlist:
     )
 
 
+_MADE: dict[int, tuple[PlacedPart, str, str, Part]] = {}  # per sketch part (by id): its circuit part
+
+
+def _add_parts(c: Circuit, parts: list[PlacedPart], ends: list[tuple[str, str]]) -> None:
+    """Add the circuit part of every part but the grounds, between its ``ends``.
+
+    Sketch parts are immutable values, and an edit replaces only those it changes: the
+    circuit parts made for the others by the last netlist are taken as they are (checked
+    when they were made), and only the new ones are made (``_add_part``). A 2,000-part
+    drawing then costs a dictionary look-up per part, not a part checked and built.
+    """
+    global _MADE
+    kept, made = _MADE, {}
+    look_up, adopt = kept.get, c._adopt
+    ends_of = iter(ends)
+    for part in parts:
+        if part.kind == "ground":
+            continue
+        a, b = next(ends_of)
+        key = id(part)
+        hit = look_up(key)
+        if hit is None or hit[0] is not part or hit[1] != a or hit[2] != b:
+            _check_name(part)
+            _add_part(c, part, a, b)
+            hit = (part, a, b, c.part(part.name))
+        else:
+            adopt(hit[3])
+        made[key] = hit
+    _MADE = made  # replaced whole: the worker thread builds netlists too
+
+
 def _new_layout(key: tuple | None, parts: list[PlacedPart], wires: list[Wire]) -> _Layout:
     """Work out the layout of a drawing (checked already) not kept."""
     degree = Counter(chain.from_iterable(p.terminal_points for p in parts))  # wire pieces added below
@@ -316,6 +342,7 @@ def _new_layout(key: tuple | None, parts: list[PlacedPart], wires: list[Wire]) -
     points = sorted(stops)
     pieces = _pieces(wires, points)
     point_at = {p: point_name(p) for p in points}
+    positions = {name: (float(p[0]), float(p[1])) for p, name in point_at.items()}
     ends = []
     for part in parts:
         if part.kind != "ground":
@@ -339,6 +366,7 @@ def _new_layout(key: tuple | None, parts: list[PlacedPart], wires: list[Wire]) -
     return _Layout(
         key=key,
         point_at=point_at,
+        positions=positions,
         ends=ends,
         conductors=conductors,
         ground=ground,
