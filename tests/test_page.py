@@ -16,9 +16,9 @@ pypdf = pytest.importorskip("pypdf")
 
 from hypothesis import given, settings, strategies as st  # noqa: E402
 from PySide6.QtCore import QLocale, QRectF, QSizeF, Qt  # noqa: E402
-from PySide6.QtGui import QImage, QPainter  # noqa: E402
-from PySide6.QtPrintSupport import QPrinter  # noqa: E402
-from PySide6.QtWidgets import QFileDialog  # noqa: E402
+from PySide6.QtGui import QImage, QPageSize, QPainter  # noqa: E402
+from PySide6.QtPrintSupport import QPrintDialog, QPrinter  # noqa: E402
+from PySide6.QtWidgets import QDialog, QFileDialog  # noqa: E402
 
 from app.assess import DISCLAIMER  # noqa: E402
 from app.cli import main  # noqa: E402
@@ -197,3 +197,25 @@ def test_export_picture_writes_the_sheet_people_print_on_there(qtbot, tmp_path, 
     box = pypdf.PdfReader(str(out)).pages[0].mediabox
     # US Letter (ANSI A) is 8.5 × 11 in, A4 (ISO 216) 210 × 297 mm; 72 PDF points to the inch
     assert (float(box.width), float(box.height)) == pytest.approx((inches[0] * 72, inches[1] * 72), abs=1)
+
+
+def test_the_paper_chosen_in_the_file_menu_is_kept_for_pdf_files_and_the_print_dialog(qtbot, tmp_path, monkeypatch):
+    out = tmp_path / "loop.pdf"
+    monkeypatch.setattr(QFileDialog, "getSaveFileName", lambda *a, **k: (str(out), ""))  # the dialog, answered
+    QLocale.setDefault(QLocale(QLocale.Language.German, QLocale.Country.Germany))
+    try:
+        win = open_window(qtbot, tmp_path, one_loop(), name="loop.lwsk")
+        assert win.paper_actions["a4"].isChecked()  # the local sheet until one is chosen
+        win.paper_actions["a3"].trigger()  # File ▸ Paper Size ▸ A3
+        win.export_picture()
+        win.close()
+        again = open_window(qtbot, tmp_path, one_loop(), name="loop.lwsk")  # the same settings file
+    finally:
+        QLocale.setDefault(QLocale.system())
+    box = pypdf.PdfReader(str(out)).pages[0].mediabox
+    # A3 (ISO 216) is 297 × 420 mm, turned across for this drawing; 72 PDF points to the inch
+    assert (float(box.width), float(box.height)) == pytest.approx((420 * MM, 297 * MM), abs=1)
+    assert again.paper_actions["a3"].isChecked() and not again.paper_actions["a4"].isChecked()
+    monkeypatch.setattr(QPrintDialog, "exec", lambda self: QDialog.DialogCode.Accepted)  # the dialog, accepted
+    printer = again.choose_printer()
+    assert printer.pageLayout().pageSize().id() == QPageSize.PageSizeId.A3

@@ -8,7 +8,7 @@ import sys
 from pathlib import Path
 
 from PySide6.QtCore import QEvent, QItemSelection, QItemSelectionModel, QRectF, QSettings, Qt, QTimer, Signal
-from PySide6.QtGui import (QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QPainter,
+from PySide6.QtGui import (QAction, QActionGroup, QCloseEvent, QGuiApplication, QKeySequence, QPageSize, QPainter,
                            QUndoStack)
 from PySide6.QtPrintSupport import QPrintDialog, QPrinter
 from PySide6.QtWidgets import (QApplication, QDialog, QFileDialog, QLabel, QMainWindow,
@@ -25,7 +25,7 @@ from .hand_analysis import HandAnalysis
 from .heap import RestCollector
 from .help_dialog import KeysDialog, show_about
 from .icons import tool_icon
-from .page import local_paper, page_notes, page_turn, paint_pages
+from .page import PAPER_NAMES, PAPERS, local_paper, page_notes, page_turn, paint_pages
 from .parts_bar import PartsBar
 from .properties import InlineValueEditor, PartPanel
 from .readings import ReadingsModel, ReadingsView
@@ -237,6 +237,15 @@ class MainWindow(QMainWindow):
         f.addAction(self.act_save_as)
         f.addAction(self.act_export)
         f.addAction(self.act_print)
+        paper = f.addMenu("Paper Si&ze")
+        group = QActionGroup(self)
+        self.paper_actions = {}
+        for key, text in PAPER_NAMES.items():
+            a = self.paper_actions[key] = QAction(text, self, checkable=True)
+            a.setChecked(key == self.paper())
+            a.triggered.connect(lambda _=False, k=key: self.set_paper(k))
+            group.addAction(a)
+            paper.addAction(a)
         f.addSeparator()
         f.addAction(self.act_close)
         f.addAction(self.act_quit)
@@ -603,9 +612,19 @@ class MainWindow(QMainWindow):
         if path:
             try:
                 render_scene(self.scene, path, title=self._page_title(), cautions=self._cautions(),
-                             paper=local_paper())
+                             paper=self.paper())
             except (ValueError, OSError) as e:
                 self.tell("Cannot export the picture", str(e))
+
+    def paper(self) -> str:
+        """The sheet PDF files and the print dialog start from (a key of ``page.PAPERS``): the
+        one chosen under File ▸ Paper, kept between sessions, else the local one."""
+        chosen = self.settings.value("paper", "")
+        return chosen if chosen in PAPERS else local_paper()
+
+    def set_paper(self, key: str) -> None:
+        self.settings.setValue("paper", key)
+        self.paper_actions[key].setChecked(True)
 
     def _page_title(self) -> str:
         return self.path.name if self.path else "Untitled sketch"
@@ -636,6 +655,7 @@ class MainWindow(QMainWindow):
         drawing's shape to begin with (None: the dialog was cancelled)."""
         printer = QPrinter(QPrinter.PrinterMode.HighResolution)
         printer.setDocName(self._page_title())
+        printer.setPageSize(QPageSize(PAPERS[self.paper()]))
         printer.setPageOrientation(page_turn(self.scene))
         dialog = QPrintDialog(printer, self)
         return printer if dialog.exec() == QDialog.DialogCode.Accepted else None

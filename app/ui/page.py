@@ -28,10 +28,11 @@ from .scene import SketchScene
 from .theme import PRINT, SMALL_PX, scheme_for
 
 __all__ = ["paint_page", "paint_pages", "sheet_areas", "write_pdf", "page_notes", "page_turn", "MOST_NOTES",
-           "SMALLEST_TEXT_MM", "PAPERS", "local_paper"]
+           "SMALLEST_TEXT_MM", "PAPERS", "PAPER_NAMES", "local_paper"]
 
 PAPERS = {"a4": QPageSize.PageSizeId.A4, "a3": QPageSize.PageSizeId.A3,  # ISO 216
           "letter": QPageSize.PageSizeId.Letter}  # ANSI A, 8.5 × 11 in
+PAPER_NAMES = {"a4": "A4, 210 × 297 mm", "a3": "A3, 297 × 420 mm", "letter": "Letter, 8.5 × 11 in"}
 
 MOST_NOTES = 12  # cautions listed on the page; the rest are counted
 # The annotations' letters are printed no smaller than this (em height, mm): ISO 3098-1 gives
