@@ -170,6 +170,54 @@ def test_a_patched_canvas_matches_one_drawn_afresh(qtbot):
         assert _state(scene) == _state(fresh), f"step {step}"
 
 
+def _random_edit(rng: random.Random, sketch: Sketch, serial: list[int]) -> str:
+    """One random edit of ``sketch``, as a person makes them: a move, a turn, a new value, a
+    rename, a deletion, a new part, a new wire or one taken away; the part it concerns."""
+    name = rng.choice([p.name for p in sketch.parts if p.kind == "resistor"])
+    part = sketch.part(name)
+    op = rng.random()
+    if op < 0.2:
+        sketch.replace_part(name, replace(part, x=part.x + rng.choice((-6, -1, 1, 6)),
+                                          y=part.y + rng.choice((-6, 0, 1, 6))))
+    elif op < 0.35:
+        sketch.replace_part(name, replace(part, rotation=(part.rotation + 90) % 360))
+    elif op < 0.45:
+        sketch.replace_part(name, replace(part, values={"resistance": rng.choice((1.0, 47.0, 1e3, 1e6))}))
+    elif op < 0.55:
+        serial[0] += 1
+        sketch.replace_part(name, replace(part, name=f"R{serial[0]}"))
+    elif op < 0.65 and len(sketch.parts) > 6:
+        sketch.remove_part(name)
+    elif op < 0.75:
+        serial[0] += 1
+        sketch.add_part(PlacedPart("resistor", f"R{serial[0]}", rng.randrange(-2, 20), rng.randrange(-2, 20),
+                                   rng.choice((0, 90)), False, {"resistance": 220.0}))
+    elif op < 0.85 or not sketch.wires:
+        x, y, run = rng.randrange(0, 20), rng.randrange(0, 20), rng.randrange(1, 6)
+        sketch.add_wire(Wire(x, y, x + run, y) if rng.random() < 0.5 else Wire(x, y, x, y + run))
+    else:
+        sketch.remove_wire(rng.randrange(len(sketch.wires)))
+    return name
+
+
+def test_a_patched_canvas_matches_one_drawn_afresh_through_every_kind_of_edit(qtbot):
+    """As above, with turns, renames, deletions, new parts and wires added and taken away."""
+    rng = random.Random(11)
+    sketch = lattice(4, 5)
+    scene = SketchScene(sketch)
+    scene.show_result(solve_sketch(sketch))
+    serial = [100]
+    for step in range(40):
+        name = _random_edit(rng, sketch, serial)
+        result = solve_sketch(sketch)
+        if step % 17 == 5:
+            scene.show_fault("a test fault", [name] if sketch.has_part(name) else [])
+        scene.show_result(result)
+        fresh = SketchScene(sketch)
+        fresh.show_result(result)
+        assert _state(scene) == _state(fresh), f"step {step}"
+
+
 def test_marks_changed_while_too_small_to_read_are_right_once_zoomed_in(qtbot):
     """Marks too small to draw skip their repaint; zooming in must still show the newest values,
     pixel for pixel as a view that showed both solutions readably (the same history, so the
